@@ -1,0 +1,1 @@
+//! The sheet language: parsing, lowering to our own evaluator, and exact Jacobians.

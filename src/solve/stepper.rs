@@ -1,0 +1,88 @@
+//! The stepper contract: one step of a method, nothing more.
+//!
+//! A stepper advances `(t, y)` by a step `h` that it is given; it never picks
+//! `h` (that is the controller's job), never locates events (that is the
+//! event locator's job, working on [`Stepper::dense`]) and never loops.
+
+use crate::problem::Problem;
+
+/// Work counters of a run. Plain counts; wall time is measured outside the core.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct Stats {
+    /// Right-hand-side evaluations (each `Problem::rhs` call, including finite-difference Jacobians).
+    pub rhs_evals: u64,
+    /// Accepted steps.
+    pub steps: u64,
+    /// Rejected step attempts (error too large, non-finite, Newton failure).
+    pub rejected: u64,
+    /// Jacobian evaluations (exact or by finite differences).
+    pub jacobians: u64,
+    /// LU factorizations of an iteration matrix.
+    pub factorizations: u64,
+}
+
+/// Error weights: a component's error `e_i` counts as `e_i / (atol + rtol·max(|y_i|, |y_new_i|))`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Tolerance {
+    /// Relative tolerance. Default 1e-6.
+    pub rtol: f64,
+    /// Absolute tolerance. Default 1e-9.
+    pub atol: f64,
+}
+
+impl Default for Tolerance {
+    fn default() -> Self {
+        Tolerance { rtol: 1e-6, atol: 1e-9 }
+    }
+}
+
+/// What one step attempt produced.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Attempt {
+    /// Weighted RMS norm of the local error estimate (≤ 1 is acceptable), or
+    /// `None` for a method without an error estimate (fixed step).
+    pub error: Option<f64>,
+    /// An estimate of `|h·λ|` for the dominant eigenvalue λ seen by this step,
+    /// when the method provides one (used for stiffness detection).
+    pub stiffness: Option<f64>,
+}
+
+/// Why a step attempt could not produce a result. The driver shrinks `h` and
+/// retries; these are not errors of the run by themselves.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum StepFault {
+    /// A stage or the result held a NaN or an infinity.
+    NonFinite,
+    /// The iteration matrix was singular.
+    Singular,
+    /// A Newton iteration did not converge.
+    NewtonFailed,
+}
+
+/// One method's step.
+pub trait Stepper {
+    /// Attempt a step of size `h` (negative for backward runs) from the
+    /// accepted state `(t, y)`. Writes the proposed state into `y_new`.
+    fn attempt(
+        &mut self,
+        problem: &mut dyn Problem,
+        t: f64,
+        y: &[f64],
+        h: f64,
+        tol: &Tolerance,
+        y_new: &mut [f64],
+        stats: &mut Stats,
+    ) -> Result<Attempt, StepFault>;
+
+    /// The last attempt was accepted (for first-same-as-last reuse and the like).
+    fn accept(&mut self);
+
+    /// Forget any data carried between steps: after an event, a switch or a
+    /// change of method the next step starts afresh.
+    fn restart(&mut self);
+
+    /// Dense output over the last accepted step `[t, t + h]`: the state at
+    /// `t + theta·h`, `0 ≤ theta ≤ 1`, into `out`.
+    fn dense(&self, theta: f64, out: &mut [f64]);
+}
