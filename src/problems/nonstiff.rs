@@ -1,0 +1,1 @@
+//! Non-stiff reference problems.

@@ -1,0 +1,1 @@
+//! Stiff reference problems.
