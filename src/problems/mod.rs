@@ -7,6 +7,40 @@ use crate::problem::{EventSpec, Problem};
 pub mod nonstiff;
 pub mod stiff;
 
+/// A named problem of the shared set, with where it starts and ends and what
+/// the right answer is.
+pub struct TestProblem {
+    /// Short stable name, e.g. `arenstorf`.
+    pub name: &'static str,
+    /// Start of the run.
+    pub t0: f64,
+    /// Initial state.
+    pub y0: Vec<f64>,
+    /// End of the run.
+    pub t_end: f64,
+    /// The state at `t_end`, when known.
+    pub reference: Option<Vec<f64>>,
+    /// Where `reference` comes from (analytic, a published value with its
+    /// source, or a committed SciPy/mpmath script).
+    pub source: &'static str,
+    /// Whether the problem is stiff.
+    pub stiff: bool,
+    /// Builds the problem.
+    pub make: fn() -> Box<dyn Problem>,
+}
+
+/// Every problem of the shared set.
+pub fn all() -> Vec<TestProblem> {
+    let mut v = nonstiff::all();
+    v.extend(stiff::all());
+    v
+}
+
+/// The problem of the shared set with this name.
+pub fn by_name(name: &str) -> Option<TestProblem> {
+    all().into_iter().find(|p| p.name == name)
+}
+
 /// A problem written as a Rust closure: the hand-written baseline for tests
 /// and benches.
 pub struct FnProblem<F> {

@@ -1,1 +1,8 @@
-//! Non-stiff reference problems.
+//! Nonstiff reference problems.
+
+use super::TestProblem;
+
+/// The nonstiff problems of the shared set.
+pub fn all() -> Vec<TestProblem> {
+    Vec::new()
+}
