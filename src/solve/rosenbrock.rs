@@ -123,10 +123,8 @@ pub struct Rosenbrock {
     arg: Vec<f64>,
     fi: Vec<f64>,
     err: Vec<f64>,
-    /// Dense data of the last attempt and of the last accepted step:
-    /// `[y, y_new, q1, q2]`.
+    /// Dense data of the last successful attempt: `[y, y_new, q1, q2]`.
     trial: [Vec<f64>; 4],
-    accepted: [Vec<f64>; 4],
 }
 
 impl Rosenbrock {
@@ -147,7 +145,6 @@ impl Rosenbrock {
             fi: z(),
             err: z(),
             trial: [z(), z(), z(), z()],
-            accepted: [z(), z(), z(), z()],
         }
     }
 
@@ -239,7 +236,6 @@ impl Stepper for Rosenbrock {
     }
 
     fn accept(&mut self) {
-        std::mem::swap(&mut self.trial, &mut self.accepted);
         self.at_point = false;
     }
 
@@ -249,7 +245,7 @@ impl Stepper for Rosenbrock {
     }
 
     fn dense(&self, theta: f64, out: &mut [f64]) {
-        let [y0, y1, q1, q2] = &self.accepted;
+        let [y0, y1, q1, q2] = &self.trial;
         for k in 0..out.len() {
             out[k] = (1.0 - theta) * y0[k] + theta * (y1[k] + (1.0 - theta) * (q1[k] + theta * q2[k]));
         }
