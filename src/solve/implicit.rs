@@ -707,8 +707,7 @@ pub(crate) mod testing {
                     }
                     h *= fac;
                 }
-                Err(e) => {
-                    if std::env::var("STIFF_DEBUG").is_ok() { eprintln!("fault {e:?} at t={t} h={h}"); }
+                Err(_) => {
                     stats.rejected += 1;
                     h *= 0.25;
                 }
