@@ -158,25 +158,20 @@ pub fn all() -> Vec<TestProblem> {
             stiff: true,
             make: || Box::new(VanDerPol::new(1000.0)),
         },
-        TestProblem {
-            name: "robertson",
-            t0: 0.0,
-            y0: vec![1.0, 0.0, 0.0],
-            t_end: 1e5,
-            reference: Some(ROBERTSON_AT_1E5.to_vec()),
-            source: SCIPY_SOURCE,
-            stiff: true,
-            make: || Box::new(Robertson::default()),
-        },
-        TestProblem {
-            name: "robertson_1e11",
-            t0: 0.0,
-            y0: vec![1.0, 0.0, 0.0],
-            t_end: 1e11,
-            reference: Some(ROBERTSON_AT_1E11.to_vec()),
-            source: SCIPY_SOURCE,
-            stiff: true,
-            make: || Box::new(Robertson::default()),
-        },
+        robertson_to("robertson", 1e5, &ROBERTSON_AT_1E5),
+        robertson_to("robertson_1e11", 1e11, &ROBERTSON_AT_1E11),
     ]
+}
+
+fn robertson_to(name: &'static str, t_end: f64, reference: &[f64; 3]) -> TestProblem {
+    TestProblem {
+        name,
+        t0: 0.0,
+        y0: vec![1.0, 0.0, 0.0],
+        t_end,
+        reference: Some(reference.to_vec()),
+        source: SCIPY_SOURCE,
+        stiff: true,
+        make: || Box::new(Robertson::default()),
+    }
 }

@@ -14,7 +14,7 @@
 
 use nalgebra::DMatrix;
 
-use super::linalg::{shifted_matrix, weight, weighted_rms, Derivatives, Factored};
+use super::linalg::{rates, shifted_matrix, weight, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -152,11 +152,7 @@ impl Stepper for ThetaStepper {
         let n = y.len();
         let th = self.method.theta;
         if !self.at_point {
-            problem.rhs(t, y, &mut self.f0);
-            stats.rhs_evals += 1;
-            if !self.f0.iter().all(|v| v.is_finite()) {
-                return Err(StepFault::NonFinite);
-            }
+            rates(problem, t, y, &mut self.f0, stats)?;
             self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
             self.rho = self.deriv.spectral_radius();
             self.at_point = true;
@@ -496,11 +492,7 @@ impl Stepper for Radau {
     ) -> Result<Attempt, StepFault> {
         let n = y.len();
         if !self.at_point {
-            problem.rhs(t, y, &mut self.f0);
-            stats.rhs_evals += 1;
-            if !self.f0.iter().all(|v| v.is_finite()) {
-                return Err(StepFault::NonFinite);
-            }
+            rates(problem, t, y, &mut self.f0, stats)?;
             self.at_point = true;
         }
         let mut converged = false;

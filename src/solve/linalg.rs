@@ -99,6 +99,18 @@ impl Derivatives {
     }
 }
 
+/// Evaluate the rates `out = f(t, y)` (counted); a non-finite value is a
+/// [`StepFault::NonFinite`].
+pub fn rates(problem: &mut dyn Problem, t: f64, y: &[f64], out: &mut [f64], stats: &mut Stats) -> Result<(), StepFault> {
+    problem.rhs(t, y, out);
+    stats.rhs_evals += 1;
+    if out.iter().all(|v| v.is_finite()) {
+        Ok(())
+    } else {
+        Err(StepFault::NonFinite)
+    }
+}
+
 /// An LU-factored square matrix, kept between steps for reuse.
 #[derive(Clone, Debug, Default)]
 pub struct Factored {

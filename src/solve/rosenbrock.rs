@@ -16,7 +16,7 @@
 //! `y(t + θh) = (1-θ) y + θ (y_new + (1-θ)(q1 + θ q2))` with
 //! `q_k = Σ_j h_kj u_j`.
 
-use super::linalg::{shifted_matrix, weighted_rms, Derivatives, Factored};
+use super::linalg::{rates, shifted_matrix, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -168,11 +168,7 @@ impl Stepper for Rosenbrock {
         let tab = self.tableau;
         let n = y.len();
         if !self.at_point {
-            problem.rhs(t, y, &mut self.f0);
-            stats.rhs_evals += 1;
-            if !self.f0.iter().all(|v| v.is_finite()) {
-                return Err(StepFault::NonFinite);
-            }
+            rates(problem, t, y, &mut self.f0, stats)?;
             self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
             self.deriv.time_derivative(problem, t, y, &self.f0, stats)?;
             self.rho = self.deriv.spectral_radius();
