@@ -40,8 +40,11 @@
 pub mod control;
 mod driver;
 pub mod explicit;
+pub mod implicit;
+pub mod linalg;
 pub mod locate;
 pub mod methods;
+pub mod rosenbrock;
 pub mod stability;
 pub mod stepper;
 pub mod tableau;
