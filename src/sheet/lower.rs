@@ -9,6 +9,7 @@
 //! it:
 //! - `abs(x)`, `sign(x)`, `signum(x)`, `step(x)`: `x`;
 //! - `min(a, b)`, `max(a, b)`: `a - b` (one per pair when there are more arguments);
+//!   `min` and `max` fold from `+inf` and `-inf` as meval does, so a NaN argument is passed over;
 //! - `clamp(x, lo, hi)`: `x - lo` and `x - hi`;
 //! - `floor(x)`, `ceil(x)`: `sin(pi*x)`, which is zero at every integer, where
 //!   they jump, and nowhere else;
@@ -205,8 +206,11 @@ fn lower_expr(
                     }
                     Func::Binary(op) => g.binary(op, arg(0), arg(1)),
                     Func::Min | Func::Max => {
-                        let op = if f == Func::Min { Op::Min } else { Op::Max };
-                        let mut acc = arg(0);
+                        // As meval does: a fold from +inf (min) or -inf
+                        // (max), so NaN arguments are passed over.
+                        let (op, start) = if f == Func::Min { (Op::Min, f64::INFINITY) } else { (Op::Max, f64::NEG_INFINITY) };
+                        let start = g.constant(start);
+                        let mut acc = g.binary(op, start, arg(0));
                         for &x in args.iter().skip(1) {
                             let r = g.binary(op, acc, x);
                             let s = g.binary(Op::Sub, acc, x);
