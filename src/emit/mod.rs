@@ -1,1 +1,1 @@
-//! placeholder, replaced by its issue
+//! The per-model wasm module emitter.
