@@ -110,13 +110,14 @@ pub struct EmittedModel {
     derivatives: Option<Kernels>,
     /// Whether the derivative module was tried for the current tapes.
     derivatives_tried: bool,
+    loads: u32,
     scratch: Vec<f64>,
 }
 
 impl EmittedModel {
     /// Wrap `model`, emitting its module when a loader is available.
     pub fn new(model: Model) -> Self {
-        let mut m = EmittedModel { model, main: None, derivatives: None, derivatives_tried: false, scratch: Vec::new() };
+        let mut m = EmittedModel { model, main: None, derivatives: None, derivatives_tried: false, loads: 0, scratch: Vec::new() };
         m.reload();
         m
     }
@@ -127,12 +128,19 @@ impl EmittedModel {
         self.derivatives_tried = false;
         let m = &self.model;
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
+        self.loads += u32::from(self.main.is_some());
         self.scratch = vec![0.0; m.all_program().outputs().len()];
     }
 
     /// Whether the rates run as emitted wasm (rather than the interpreter).
     pub fn is_emitted(&self) -> bool {
         self.main.is_some()
+    }
+
+    /// How many modules were emitted and loaded for this model so far (one
+    /// for the rates and one for the derivatives per compilation of the sheet).
+    pub fn loads(&self) -> u32 {
+        self.loads
     }
 
     /// The wrapped model.
@@ -175,6 +183,7 @@ impl EmittedModel {
             let jac = self.model.jacobian_program().clone();
             let dfdt = self.model.time_derivative_program();
             self.derivatives = load(&DERIVATIVES, &[&jac, dfdt]);
+            self.loads += u32::from(self.derivatives.is_some());
         }
         self.derivatives.as_ref().map(|d| d.0[k])
     }

@@ -193,20 +193,36 @@ fn evaluate(p: &mut dyn Problem, points: &[f64]) -> Vec<f64> {
     out
 }
 
-/// Evaluate a sheet both ways at `points` (each `t` then the states):
-/// `{ emitted, interpreted: Float64Array, compiled: Float64Array }`, where
-/// `emitted` says whether the compiled side really ran emitted code. For the
-/// equivalence tests.
+/// Evaluate a sheet both ways at `points` (each `t` then the states), for
+/// the equivalence tests. `live`, when given, is a list of `[name, value]`:
+/// those parameters are made live, then set, before evaluating.
+///
+/// Returns `{ emitted, loads, dim, interpreted: Float64Array, compiled: Float64Array }`:
+/// `emitted` says whether the compiled side really ran emitted code, `loads`
+/// how many modules it loaded.
 #[wasm_bindgen(js_name = emitCheck)]
-pub fn emit_check(sheet: &str, points: &[f64]) -> Result<JsValue, JsValue> {
+pub fn emit_check(sheet: &str, points: &[f64], live: JsValue) -> Result<JsValue, JsValue> {
+    let live: Vec<(String, f64)> =
+        if live.is_undefined() || live.is_null() { Vec::new() } else { serde_wasm_bindgen::from_value(live)? };
     let m = compile(sheet)?;
     let mut interpreted = m.clone();
     let mut compiled = EmittedModel::new(m);
+    if !live.is_empty() {
+        let names: Vec<&str> = live.iter().map(|(n, _)| n.as_str()).collect();
+        interpreted.set_live(&names);
+        compiled.set_live(&names);
+        for (n, v) in &live {
+            interpreted.set_param(n, *v);
+            compiled.set_param(n, *v);
+        }
+    }
     let emitted = compiled.is_emitted();
     let a = evaluate(&mut interpreted, points);
     let b = evaluate(&mut compiled, points);
     let o = Object::new();
     Reflect::set(&o, &"emitted".into(), &emitted.into())?;
+    Reflect::set(&o, &"loads".into(), &compiled.loads().into())?;
+    Reflect::set(&o, &"dim".into(), &(compiled.dim() as u32).into())?;
     Reflect::set(&o, &"interpreted".into(), &Float64Array::from(&a[..]))?;
     Reflect::set(&o, &"compiled".into(), &Float64Array::from(&b[..]))?;
     Ok(o.into())
