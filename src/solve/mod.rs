@@ -2,3 +2,6 @@
 //! output, event location and the driver that runs them.
 
 pub mod stepper;
+pub mod implicit;
+pub mod linalg;
+pub mod rosenbrock;
