@@ -115,7 +115,7 @@ fn several_kernels_share_one_module_and_one_set_of_imports() {
 /// A long chain `s ← s·y0 + t` repeated, with every step also feeding a
 /// running sum that is output at the end.
 fn long_chain(n: usize) -> Program {
-    let first = 1 + 1 + 0 + 0;
+    let first = 2; // slot 0 is t, slot 1 is y0; no live values or constants
     let mut insts = Vec::new();
     let mut acc = 1u32; // y0
     let mut sum = 0u32; // t

@@ -418,10 +418,4 @@ mod tests {
             assert_eq!(b, want, "sleb {v}");
         }
     }
-
-    #[test]
-    fn an_empty_module_is_the_bare_header_and_empty_sections() {
-        let b = Module::new().finish();
-        assert_eq!(&b[..8], b"\0asm\x01\0\0\0");
-    }
 }
