@@ -187,6 +187,20 @@ impl EmittedModel {
         }
         self.derivatives.as_ref().map(|d| d.0[k])
     }
+
+    /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`;
+    /// `false` when it is not emitted or the lengths do not fit.
+    fn run_derivative(&mut self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
+        let dim = self.model.dim();
+        let Some(f) = self.derivative_kernel(k) else { return false };
+        let p = if k == 0 { self.model.jacobian_program() } else { self.model.time_derivative_program() };
+        if !fits(p, dim, y, out) {
+            return false;
+        }
+        // SAFETY: kernel `k` of the derivative module is emitted from this tape; lengths checked.
+        unsafe { call(f, p, t, y, out) };
+        true
+    }
 }
 
 impl Problem for EmittedModel {
@@ -208,29 +222,11 @@ impl Problem for EmittedModel {
     }
 
     fn jacobian(&mut self, t: f64, y: &[f64], jac: &mut [f64]) -> bool {
-        let dim = self.model.dim();
-        if let Some(f) = self.derivative_kernel(0) {
-            let p = self.model.jacobian_program();
-            if fits(p, dim, y, jac) {
-                // SAFETY: kernel 0 of the derivative module is emitted from this tape; lengths checked.
-                unsafe { call(f, p, t, y, jac) };
-                return true;
-            }
-        }
-        self.model.jacobian(t, y, jac)
+        self.run_derivative(0, t, y, jac) || self.model.jacobian(t, y, jac)
     }
 
     fn time_derivative(&mut self, t: f64, y: &[f64], dfdt: &mut [f64]) -> bool {
-        let dim = self.model.dim();
-        if let Some(f) = self.derivative_kernel(1) {
-            let p = self.model.time_derivative_program();
-            if fits(p, dim, y, dfdt) {
-                // SAFETY: kernel 1 of the derivative module is emitted from this tape; lengths checked.
-                unsafe { call(f, p, t, y, dfdt) };
-                return true;
-            }
-        }
-        self.model.time_derivative(t, y, dfdt)
+        self.run_derivative(1, t, y, dfdt) || self.model.time_derivative(t, y, dfdt)
     }
 
     fn helper_names(&self) -> &[String] {
