@@ -195,6 +195,11 @@ pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> 
 
 /// Solve an already compiled model with `req`.
 pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
+    for (field, v) in [("max_steps", req.max_steps), ("max_output", req.max_output), ("max_events", req.max_events)] {
+        if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
+            return Err(ApiError::Settings(SolveError::InvalidSettings { field, reason: "must be a number ≥ 0".to_string() }));
+        }
+    }
     let s = settings(req);
     let (t0, y0) = (m.t0(), m.initial_state().to_vec());
     let run = solve::solve(m, t0, &y0, &s).map_err(ApiError::Settings)?;
