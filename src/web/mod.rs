@@ -5,6 +5,8 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+mod bench_stiff;
+
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
     let s = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true);
     v.serialize(&s).map_err(|e| JsValue::from(js_sys::Error::new(&e.to_string())))
