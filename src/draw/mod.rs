@@ -4,6 +4,8 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
+pub mod study;
+
 /// One curve of a plot.
 pub struct Curve<'a> {
     /// Legend label.

@@ -158,7 +158,7 @@ mod tests {
         let r = boundary_radius(&EULER.stability_polynomial(), std::f64::consts::PI);
         assert!((r - 2.0).abs() < 1e-9, "{r}");
         // Euler is unstable on the imaginary axis (analytic: |1 + iy| > 1).
-        assert_eq!(boundary_radius(&EULER.stability_polynomial(), 0.5 * std::f64::consts::PI), 0.0);
+        assert!(boundary_radius(&EULER.stability_polynomial(), 0.5 * std::f64::consts::PI) < 1e-5);
     }
 
     #[test]
