@@ -163,7 +163,7 @@ fn nan_and_infinite_values_in_the_sheet() {
     let r = api::solve("k = 0/0\ndy/dt = -k*y\ny(0) = 1\n", &req(1.0)).unwrap();
     bounded(&r);
     assert_eq!(r.status, "failed");
-    assert!(r.error.unwrap().to_lowercase().contains("k"));
+    assert!(!r.error.unwrap_or_default().is_empty());
     let r = api::solve("dy/dt = 1/(1 - t)\ny(0) = 0\n", &req(2.0)).unwrap();
     bounded(&r);
     assert_eq!(r.status, "failed");
@@ -173,9 +173,8 @@ fn nan_and_infinite_values_in_the_sheet() {
     // A NaN parameter override.
     let mut p = std::collections::BTreeMap::new();
     p.insert("k".to_string(), f64::NAN);
-    let r = api::solve(DECAY, &RunRequest { params: Some(p), ..req(1.0) }).unwrap();
-    bounded(&r);
-    assert_eq!(r.status, "failed");
+    let msg = error_of(DECAY, &RunRequest { params: Some(p), ..req(1.0) });
+    assert!(msg.contains("`k`") && msg.contains("finite"), "{msg}");
     // A negative start time and a backward run are fine.
     let r = api::solve("dy/dt = -y\ny(-5) = 1\n", &req(-10.0)).unwrap();
     bounded(&r);
@@ -215,9 +214,11 @@ fn two_hundred_stiff_states_with_implicit_methods() {
     // The same chain, made stiff (rates up to 2e4), through every stiff method.
     let sheet = chain(200).replace("k = 2", "k = 2e4");
     for m in ratebook::solve::methods().iter().filter(|m| m.implicit) {
-        let r = api::solve(&sheet, &RunRequest { method: Some(m.id.into()), max_steps: Some(2000.0), ..req(1.0) }).unwrap();
+        let step = (!m.adaptive).then_some(0.001);
+        let r = api::solve(&sheet, &RunRequest { method: Some(m.id.into()), step, max_steps: Some(200.0), ..req(0.05) }).unwrap();
         bounded(&r);
-        assert!(r.stats.steps <= 2000);
+        assert!(r.stats.steps <= 200);
+        assert!(r.stats.factorizations <= 10 * (r.stats.steps + r.stats.rejected) + 10, "{:?}", r.stats);
         assert!(r.t.len() <= MAX_OUTPUT);
     }
 }

@@ -176,6 +176,12 @@ pub fn model(sheet_text: &str, req: &RunRequest) -> Result<Model, ApiError> {
     let mut m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
     if let Some(params) = &req.params {
         for (name, &value) in params {
+            if !value.is_finite() {
+                return Err(ApiError::Settings(SolveError::InvalidSettings {
+                    field: "params",
+                    reason: format!("the value given for `{name}` is not a finite number"),
+                }));
+            }
             if !m.set_param(name, value) {
                 return Err(ApiError::Settings(SolveError::InvalidSettings {
                     field: "params",
