@@ -52,7 +52,10 @@ html = html.replace(/<script type="text\/plain" id="([^"]+)" data-bundle="([^"]+
 html = html.replace(/<script type="module" src="([^"]+)"><\/script>/g, (_, s) =>
   `<script type="module">\n${safe(bundle(join(root, s)))}\n</script>`);
 
-if (/\s(src|href)="(?!data:|#)[^"]*"/.test(html)) {
+// Look for references in the markup only: inlined script text may well hold
+// strings such as an <iframe src="…"> snippet for the user to copy.
+const markup = html.replace(/(<script\b[^>]*>)[\s\S]*?<\/script>/gi, "$1</script>");
+if (/\s(src|href)="(?!data:|#)[^"]*"/.test(markup)) {
   throw new Error("inline: an external reference is left in the single file");
 }
 writeFileSync(out, html);
