@@ -32,9 +32,9 @@ const METHODS = [
 const PLOT_POINTS = 600;
 const EDIT_DELAY_MS = 300;
 
-const wasmModule = new WebAssembly.Module(wasmBytes());
-initSync({ module: wasmModule });
-setModule(wasmModule);
+const solverModule = new WebAssembly.Module(wasmBytes());
+initSync({ module: solverModule });
+setModule(solverModule);
 setLocal({
   solve: (m) => solve(m.sheet, m.settings),
   compare: (m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress),
@@ -285,7 +285,7 @@ async function runComparison() {
 
 // ---- wiring
 
-function init() {
+function initPage() {
   document.title = "ratebook";
   $("version-line").textContent = `ratebook ${version()}`;
   $("method").replaceChildren(...METHODS.map(([id, name]) => el("option", { value: id }, name)));
@@ -363,8 +363,8 @@ function init() {
   if (!canAutosave()) $("sheet-state").textContent = "autosave is off here (no storage in this frame)";
 }
 
-async function start() {
-  init();
+async function startPage() {
+  initPage();
   const hash = location.hash;
   app.embed = /(^#|&)embed(&|$)/.test(hash);
   document.body.classList.toggle("embed", app.embed);
@@ -379,4 +379,4 @@ async function start() {
   document.body.dataset.ready = "1";
 }
 
-start();
+startPage();

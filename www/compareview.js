@@ -35,7 +35,7 @@ function describeOrders() {
   return plot;
 }
 
-function showTable() {
+function showCompareTable() {
   const r = report;
   const head = el("tr", {}, ...["method", "h", `${r.independent} at the end`, `${r.quantity} at the end`, "difference from reference", "rate evaluations"].map((h) => el("th", { scope: "col" }, h)));
   const row = (run, ref) => el("tr", {},
@@ -53,7 +53,7 @@ export function showComparison(rep) {
   report = rep;
   drawPlot("compare-plot");
   drawPlot("order-plot");
-  showTable();
+  showCompareTable();
 }
 
 /** Forget the comparison (the model changed). */

@@ -6,7 +6,7 @@
 // worker.js when served.
 import { $ } from "./dom.js";
 
-let wasmModule = null;
+let sharedSolverModule = null;
 let worker = null;
 let workerBroken = false;
 let nextId = 1;
@@ -14,7 +14,7 @@ const pending = new Map();
 
 /** Give the runner the compiled solver module (shared with the worker). */
 export function setModule(module) {
-  wasmModule = module;
+  sharedSolverModule = module;
 }
 
 function workerUrl() {
@@ -24,7 +24,7 @@ function workerUrl() {
 }
 
 function startWorker() {
-  if (worker || workerBroken || !wasmModule) return worker;
+  if (worker || workerBroken || !sharedSolverModule) return worker;
   try {
     worker = new Worker(workerUrl(), { type: "module" });
   } catch {
@@ -52,7 +52,7 @@ function startWorker() {
     worker = null;
     for (const job of jobs) { finishBusy(job); runHere(job); }
   };
-  worker.postMessage({ kind: "init", module: wasmModule });
+  worker.postMessage({ kind: "init", module: sharedSolverModule });
   return worker;
 }
 
@@ -117,7 +117,7 @@ export function inWorker(msg, { label = "Solving…", onProgress } = {}) {
 
 /** Whether jobs really go to a worker (false once it proved unable to start). */
 export function hasWorker() {
-  return !workerBroken && !!wasmModule;
+  return !workerBroken && !!sharedSolverModule;
 }
 
 export function initRunner() {

@@ -11,7 +11,7 @@ function colourOf(name) {
   return tv.colours.get(name) ?? 0;
 }
 
-function describe() {
+function describeTime() {
   const run = tv.run;
   if (!run) return null;
   const names = tv.shown.filter((n) => run.values[n]);
@@ -151,7 +151,7 @@ function hover(px, py) {
 }
 
 export function initTimeView() {
-  registerPlot("time-plot", describe);
+  registerPlot("time-plot", describeTime);
   const c = $("time-plot");
   c.addEventListener("wheel", (e) => {
     e.preventDefault();
