@@ -9,6 +9,8 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
+pub mod study;
+
 /// Why a plot could not be drawn.
 #[derive(Debug)]
 pub struct DrawError(pub String);
