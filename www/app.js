@@ -1,6 +1,6 @@
 // The workbench page: wires the editor, settings, views, results and keeping
 // of work around the solver.
-import { initSync, solve, compareMethods, version } from "./pkg/ratebook.js";
+import { initSync, solve, compareMethods, methods, version } from "./pkg/ratebook.js";
 import { wasmBytes } from "./pkg/wasm_bytes.js";
 import { $, el, notify, download } from "./dom.js";
 import { EXAMPLES, exampleById } from "./examples.js";
@@ -8,6 +8,7 @@ import { initEditor, setProblems, refreshEditor, readOnly } from "./editor.js";
 import { initRunner, setModule, setLocal, inWorker, hasWorker } from "./runner.js";
 import { initExports } from "./plotkit.js";
 import { initTimeView, showRun, drawTime } from "./timeview.js";
+import { initFieldView, showFieldRun, drawField, setFieldAxes } from "./fieldview.js";
 import { initCompareView, showComparison, clearComparison, setCompareQuantities } from "./compareview.js";
 import { showSummary, showTable, downloadCsv } from "./results.js";
 import { showParams } from "./params.js";
@@ -20,21 +21,16 @@ import { renderAccuracy } from "./accuracy.js";
 const PRISTINE_PAGE = "<!doctype html>\n" + document.documentElement.outerHTML;
 const SINGLE_FILE = ($("worker-src")?.textContent ?? "").trim().length > 0;
 
-const METHODS = [
-  ["auto", "auto (picks explicit or stiff by itself)", "adaptive"],
-  ["dp54", "Dormand–Prince 5(4)", "adaptive"],
-  ["bs32", "Bogacki–Shampine 3(2)", "adaptive"],
-  ["rk4", "classical Runge–Kutta 4, fixed h", "fixed"],
-  ["heun", "Heun, fixed h", "fixed"],
-  ["midpoint", "explicit midpoint, fixed h", "fixed"],
-  ["euler", "Euler, fixed h", "fixed"],
-];
+let METHODS = [];
 const PLOT_POINTS = 600;
 const EDIT_DELAY_MS = 300;
 
 const solverModule = new WebAssembly.Module(wasmBytes());
 initSync({ module: solverModule });
 setModule(solverModule);
+// [id, label, "adaptive" | "fixed"], `auto` first, from the solver's registry.
+METHODS = methods().map((m) => [m.id, m.adaptive ? m.name : `${m.name}, fixed h`, m.adaptive ? "adaptive" : "fixed"]);
+METHODS.sort((a, b) => (b[0] === "auto") - (a[0] === "auto"));
 setLocal({
   solve: (m) => solve(m.sheet, m.settings),
   compare: (m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress),
@@ -151,6 +147,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
+  showFieldRun(sheet, s, plotRun);
   if (!live) {
     showParams(sheet, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
@@ -210,6 +207,7 @@ function loadExample(id, opts) {
   const caution = $("model-caution");
   caution.textContent = ex.caution ?? "";
   caution.hidden = !ex.caution;
+  if (ex.field) setFieldAxes(ex.field);
   return applyKept({ sheet: ex.sheet, settings: ex.settings }, opts);
 }
 
@@ -259,6 +257,7 @@ function selectTab(name, focus = false) {
   }
   if (focus) $(`tab-${name}`).focus();
   if (name === "time") drawTime();
+  if (name === "field") drawField();
   if (name === "accuracy") showAccuracy();
 }
 
@@ -293,6 +292,7 @@ function initPage() {
   initEditor(edited);
   initRunner();
   initTimeView();
+  initFieldView();
   initCompareView(runComparison);
   initExports(fileBase);
 

@@ -77,6 +77,22 @@ pub fn compare_methods(sheet: &str, settings: JsValue, request_: JsValue, progre
     to_js(&rep)
 }
 
+/// The field view's numbers for `sheet` (see `api::field`): the slope field
+/// or phase plane, nullclines, and curves through the requested starts.
+#[wasm_bindgen(js_name = fieldView)]
+pub fn field_view(sheet: &str, settings: JsValue, request_: JsValue) -> Result<JsValue, JsValue> {
+    let base: api::RunRequest = request(settings, "settings")?;
+    let req: api::field::FieldRequest = request(request_, "field view")?;
+    let rep = api::field::field_view(sheet, &base, &req).map_err(api_error)?;
+    to_js(&rep)
+}
+
+/// The solver's methods, in registry order: `[{ id, name, order, adaptive, implicit, summary, … }]`.
+#[wasm_bindgen]
+pub fn methods() -> Result<JsValue, JsValue> {
+    to_js(&crate::solve::methods())
+}
+
 /// A plot being described from JS, then drawn on a canvas or as SVG. Each
 /// view of the page builds one per redraw and frees it.
 #[wasm_bindgen]
