@@ -144,6 +144,8 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   $("sheet-state").textContent = "";
   showRun(plotRun, { resetView });
   showSummary(plotRun, { method: s.method });
+  $("summary").dataset.settings = JSON.stringify(s);
+  document.body.dataset.shownExample = app.exampleId;
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
@@ -204,6 +206,7 @@ function loadExample(id, opts) {
   const ex = exampleById(id);
   if (!ex) return null;
   app.exampleId = id;
+  document.body.dataset.shownExample = "";
   const caution = $("model-caution");
   caution.textContent = ex.caution ?? "";
   caution.hidden = !ex.caution;

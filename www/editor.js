@@ -23,6 +23,8 @@ export function refreshEditor() {
   });
   gutter.replaceChildren(g);
   marks.replaceChildren(m);
+  // The read-only copy (embed mode, print) always holds the current sheet.
+  $("sheet-readonly").textContent = sheet().value;
   syncScroll();
 }
 

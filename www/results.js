@@ -1,7 +1,7 @@
 // Results: the summary (final values, events, peaks and troughs, run
 // statistics, diagnostics), the table at the output times, and the CSV.
 import { $, el, fmt, download } from "./dom.js";
-import { extremaOf } from "./runinfo.js";
+import { extremaOf, stopEvent } from "./runinfo.js";
 
 const TABLE_ROWS = 2000;
 
@@ -19,11 +19,15 @@ export function showSummary(run, { method } = {}) {
   const names = [...run.states, ...run.helpers];
   const blocks = [];
 
-  const status = { finished: "finished", stopped: "stopped by an event", failed: "failed" }[run.status] ?? run.status;
+  // A stopped run ends at its stop event, which carries every value there.
+  const stop = stopEvent(run);
+  const endT = stop ? stop.t : run.t[last];
+  const endValue = (n) => (stop && Number.isFinite(stop.values?.[n]) ? stop.values[n] : run.values[n][last]);
+  const status = stop ? `stopped: ${stop.name}` : ({ finished: "finished", failed: "failed" }[run.status] ?? run.status);
   const finals = el("table", { class: "numbers", id: "summary-final" },
     el("tr", {}, el("th", {}, "quantity"), el("th", {}, "value")),
-    ...names.map((n) => el("tr", { "data-name": n }, el("td", {}, n), num(run.values[n][last], 8))));
-  blocks.push(section(`At ${run.independent} = ${fmt(run.t[last], 8)} (${status})`, finals));
+    ...names.map((n) => el("tr", { "data-name": n }, el("td", {}, n), num(endValue(n), 8))));
+  blocks.push(section(`At ${run.independent} = ${fmt(endT, 8)} (${status})`, finals));
 
   const events = run.events ?? [];
   blocks.push(section("Events",

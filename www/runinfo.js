@@ -58,3 +58,13 @@ export function grid(t0, to, spacing, cap = 100000) {
   if (Math.abs(out[out.length - 1] - to) <= 1e-9 * Math.abs(span)) out[out.length - 1] = to; else out.push(to);
   return out;
 }
+
+/** The stop event that ended the run, if one did. */
+export function stopEvent(run) {
+  return run.status === "stopped" ? (run.events ?? []).at(-1) : undefined;
+}
+
+/** Where the run really ended: its stop event, else its last output time. */
+export function runEnd(run) {
+  return stopEvent(run)?.t ?? run.t[run.t.length - 1];
+}

@@ -2,7 +2,7 @@
 // with event rules, peak and trough marks, a hover read-out, and zoom/pan.
 import { $, el, fmt } from "./dom.js";
 import { Plot, registerPlot, drawPlot, canvasPoint, toData, toPixel, insideFrame } from "./plotkit.js";
-import { extremaOf } from "./runinfo.js";
+import { extremaOf, runEnd } from "./runinfo.js";
 
 const tv = { run: null, shown: [], view: null, frame: null, drag: null, colours: new Map() };
 
@@ -19,7 +19,7 @@ function describeTime() {
   if (tv.view) plot.window(tv.view.x0, tv.view.x1, tv.view.y0, tv.view.y1);
   for (const n of names) plot.line(n, run.t, run.values[n], colourOf(n), 2, false, false);
   for (const e of run.events ?? []) plot.rule(e.t, e.name);
-  const t0 = run.t[0], t1 = run.t[run.t.length - 1];
+  const t0 = run.t[0], t1 = runEnd(run);
   const inner = (t) => Math.abs(t - t0) > 1e-9 * Math.abs(t1 - t0) && Math.abs(t - t1) > 1e-9 * Math.abs(t1 - t0);
   for (const x of extremaOf(run)) {
     if (!names.includes(x.name) || !inner(x.t)) continue;

@@ -10,6 +10,12 @@
 use serde::{Deserialize, Serialize};
 
 use super::{solve, ApiError, RunReport, RunRequest};
+use crate::solve::SolveError;
+
+/// A request setting out of range, as the API reports it.
+pub(super) fn invalid(field: &'static str, reason: impl Into<String>) -> ApiError {
+    ApiError::Settings(SolveError::InvalidSettings { field, reason: reason.into() })
+}
 
 /// What to compare.
 #[derive(Clone, Debug, Deserialize)]
@@ -153,7 +159,7 @@ pub fn compare(
     progress(1, total);
     let quantity = match &req.quantity {
         Some(q) if reference_report.values.0.iter().any(|(k, _)| k == q) => q.clone(),
-        Some(q) => return Err(ApiError::Settings(format!("the sheet has no state or helper named `{q}`"))),
+        Some(q) => return Err(invalid("quantity", format!("the sheet has no state or helper named `{q}`"))),
         None => reference_report.states.first().cloned().unwrap_or_default(),
     };
     let reference = pick(&reference_report, &quantity, "dp54", None);
@@ -161,11 +167,11 @@ pub fn compare(
     let span = (base.to.unwrap_or(reference.end_t) - t0).abs();
     let h0 = match req.step {
         Some(h) if h.is_finite() && h > 0.0 => h,
-        Some(_) => return Err(ApiError::Settings("the comparison's step must be a positive number".into())),
+        Some(_) => return Err(invalid("step", "the comparison's step must be a positive number")),
         None => span / 40.0,
     };
     if !(h0 > 0.0) {
-        return Err(ApiError::Settings("the run has no length to compare over".into()));
+        return Err(invalid("to", "the run has no length to compare over"));
     }
     let mut runs = Vec::new();
     let mut fits = Vec::new();
@@ -212,6 +218,7 @@ mod tests {
         let base = RunRequest { to: Some(1200.0), ..Default::default() };
         let mut calls = Vec::new();
         let rep = compare(COOLING, &base, &CompareRequest::default(), &mut |d, n| calls.push((d, n))).unwrap();
+        assert_eq!(rep.independent, "t");
         assert_eq!(rep.quantity, "T");
         assert_eq!(rep.runs.len(), 9);
         assert_eq!(calls.last(), Some(&(10, 10)));
@@ -225,6 +232,32 @@ mod tests {
         }
         assert_eq!(rep.runs[0].step, Some(30.0));
         assert_eq!(rep.runs[2].step, Some(7.5));
+    }
+
+    #[test]
+    fn observed_orders_are_those_of_the_methods() {
+        // Common practice, no source: the global error of a p-th order method
+        // falls like h^p, so Euler, Heun and RK4 show slopes 1, 2 and 4.
+        let base = RunRequest { to: Some(1200.0), ..Default::default() };
+        let req = CompareRequest { levels: 4, ..Default::default() };
+        let rep = compare(COOLING, &base, &req, &mut |_, _| {}).unwrap();
+        for (fit, order) in rep.fits.iter().zip([1.0, 2.0, 4.0]) {
+            let slope = fit.slope.unwrap();
+            assert!((slope - order).abs() < 0.2, "{}: slope {slope}", fit.method);
+        }
+    }
+
+    #[test]
+    fn a_two_state_sheet_compares_the_chosen_quantity() {
+        // Undamped oscillator x'' = -x from x = 1: x(t) = cos t (analytic).
+        let sheet = "x'' = -x\nx(0) = 1\nx'(0) = 0\n";
+        let base = RunRequest { to: Some(3.0), ..Default::default() };
+        let req = CompareRequest { quantity: Some("x'".into()), ..Default::default() };
+        let rep = compare(sheet, &base, &req, &mut |_, _| {}).unwrap();
+        assert_eq!(rep.quantity, "x'");
+        assert!((rep.reference.end + 3f64.sin()).abs() < 1e-8);
+        let rk4_fine = rep.runs.iter().filter(|r| r.method == "rk4").last().unwrap();
+        assert!(rk4_fine.difference.abs() < 1e-6);
     }
 
     #[test]

@@ -7,7 +7,8 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{ApiError, RunRequest, SheetFault};
+use super::compare::invalid;
+use super::{ApiError, RunRequest};
 use crate::problem::Problem;
 use crate::sheet;
 use crate::solve;
@@ -229,10 +230,6 @@ pub fn auto_window(x: &[f64], y: &[f64]) -> Window {
     [x0, x1, y0, y1]
 }
 
-fn sheet_fault(e: sheet::ModelError) -> ApiError {
-    ApiError::Sheet(SheetFault { line: e.line, column: e.column, message: e.message() })
-}
-
 /// Run `model` from `(t, y)` to `to` with the adaptive reference method and a
 /// step cap; the trajectory as far as it got (a failed run keeps its partial result).
 fn curve(model: &mut sheet::Model, t: f64, y: &[f64], to: f64, tol: solve::Tolerance) -> solve::Run {
@@ -284,10 +281,10 @@ fn join(back: &solve::Run, fwd: &solve::Run, ix: Option<usize>, iy: usize) -> Po
 /// with nullclines; plus a curve through each requested start, forward and
 /// backward within the window.
 pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<FieldReport, ApiError> {
-    let mut model = sheet::compile(sheet).map_err(sheet_fault)?;
+    let mut model = super::model(sheet, base)?;
     let t0 = model.t0();
     let y0 = model.initial_state().to_vec();
-    let to = base.to.filter(|v| v.is_finite()).ok_or(ApiError::Settings("`to` is required".into()))?;
+    let to = base.to.filter(|v| v.is_finite()).ok_or_else(|| invalid("to", "the end of the run must be a finite number"))?;
     let names: Vec<String> = model.state_names().to_vec();
     let tol = solve::Tolerance {
         rtol: base.rtol.filter(|v| *v > 0.0).unwrap_or(1e-6),
@@ -300,7 +297,7 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
             Some(n) => names
                 .iter()
                 .position(|s| s == n)
-                .ok_or_else(|| ApiError::Settings(format!("the sheet has no state named `{n}`"))),
+                .ok_or_else(|| invalid("field", format!("the sheet has no state named `{n}`"))),
         }
     };
     if names.len() == 1 {
@@ -331,7 +328,7 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
     let ix = index(&req.x, 0)?;
     let iy = index(&req.y, 1)?;
     if ix == iy {
-        return Err(ApiError::Settings("pick two different states for the phase plane".into()));
+        return Err(invalid("field", "pick two different states for the phase plane"));
     }
     let main = curve(&mut model, t0, &y0, to, tol);
     let w = req.window.and_then(valid).unwrap_or_else(|| auto_window(&main.states[ix], &main.states[iy]));

@@ -7,6 +7,7 @@
 //! agree.
 
 use plotters::coord::Shift;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::prelude::*;
 
 pub mod study;
@@ -412,11 +413,11 @@ where
             RGBColor(0x7a, 0x30, 0x20).stroke_width(1),
         ))?;
         let (bx, by) = chart.backend_coord(&(x, y1));
-        root.draw(&Text::new(
-            r.label.clone(),
-            (bx + 3, by - 16),
-            ("sans-serif", 12).into_font().color(&RGBColor(0x7a, 0x30, 0x20)),
-        ))?;
+        // Labels near the right edge go to the left of their rule.
+        let right = (bx as f64) > frame.left + 0.75 * (frame.right - frame.left);
+        let style = ("sans-serif", 12).into_font().color(&RGBColor(0x7a, 0x30, 0x20));
+        let style = if right { style.pos(Pos::new(HPos::Right, VPos::Top)) } else { style };
+        root.draw(&Text::new(r.label.clone(), (if right { bx - 3 } else { bx + 3 }, by - 16), style))?;
     }
 
     for m in &fig.marks {
@@ -435,7 +436,10 @@ where
         }
         if !m.label.is_empty() {
             let dy = if m.shape == MarkShape::Trough { 6 } else { -18 };
-            root.draw(&Text::new(m.label.clone(), (bx + 6, by + dy), ("sans-serif", 12).into_font().color(&INK)))?;
+            let right = (bx as f64) > frame.left + 0.8 * (frame.right - frame.left);
+            let style = ("sans-serif", 12).into_font().color(&INK);
+            let style = if right { style.pos(Pos::new(HPos::Right, VPos::Top)) } else { style };
+            root.draw(&Text::new(m.label.clone(), (if right { bx - 6 } else { bx + 6 }, by + dy), style))?;
         }
     }
 

@@ -7,7 +7,7 @@ import { mkdirSync, readFileSync, writeFileSync, copyFileSync, mkdtempSync } fro
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { ROOT, SINGLE_FILE, SINGLE_FILE_URL, serveWww, launch, openPage, inkedPixels } from "./harness.mjs";
-import { ready, setSheet, summaryValues, nodeRun, download } from "./pagekit.mjs";
+import { ready, setSheet, summaryValues, nodeRun, download, dialogText } from "./pagekit.mjs";
 
 const SHOTS = join(ROOT, "target", "screenshots");
 mkdirSync(SHOTS, { recursive: true });
@@ -75,8 +75,7 @@ test("a share link restores the sheet, the settings and identical results", asyn
   await page.dispatchEvent("#to", "change");
   await page.waitForFunction(() => document.querySelector("#summary").textContent.includes("777.5"));
   const want = { sheet: await page.inputValue("#sheet"), values: await summaryValues(page) };
-  await page.click("#share");
-  const link = await page.inputValue("#dialog-value");
+  const link = await dialogText(page, "#share");
   assert.match(link, /#m=[A-Za-z0-9_-]+$/);
   const other = await context.newPage();
   await other.goto(link);
@@ -203,7 +202,9 @@ test("the single file works from file:// with the network blocked: solve, worker
   await page.click("#tab-compare");
   await page.click("#compare-run");
   await page.waitForSelector("#compare-table tbody tr");
+  await page.evaluate(() => { document.getElementById("dialog-value").value = ""; });
   await page.click("#embed");
+  await page.waitForFunction(() => document.getElementById("dialog-value").value.length > 0);
   assert.match(await page.inputValue("#dialog-value"), /^<iframe src="ratebook.html#embed&m=[A-Za-z0-9_-]+" sandbox="allow-scripts"/);
   assert.equal(await page.isVisible("#dialog-download"), true, "the single file is offered for download");
   await page.screenshot({ path: join(SHOTS, "page-single-file.png"), fullPage: true });
@@ -220,8 +221,7 @@ test("embed mode works inside a sandboxed iframe", async () => {
   await ready(maker);
   await setSheet(maker, "T' = -0.0025*(T - 19)\nT(0) = 120\n");
   await maker.waitForTimeout(400);
-  await maker.click("#embed");
-  const snippet = await maker.inputValue("#dialog-value");
+  const snippet = await dialogText(maker, "#embed");
   const want = await summaryValues(maker);
   await maker.close();
   writeFileSync(join(dir, "wiki.html"), `<!doctype html><title>wiki</title><h1>Shop notes</h1>${snippet}`);

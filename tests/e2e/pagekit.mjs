@@ -33,3 +33,24 @@ export async function download(page, selector, encoding = "utf8") {
   const [dl] = await Promise.all([page.waitForEvent("download"), page.click(selector)]);
   return readFileSync(await dl.path(), encoding);
 }
+
+/** Click `selector` (share or embed) and return the text its dialog offers. */
+export async function dialogText(frame, selector) {
+  await frame.evaluate(() => { document.getElementById("dialog-value").value = ""; });
+  await frame.click(selector);
+  await frame.waitForFunction(() => document.getElementById("dialog-value").value.length > 0);
+  const v = await frame.inputValue("#dialog-value");
+  await frame.click("#dialog-close");
+  return v;
+}
+
+/** The settings of the run the page shows, as it passed them to the solver. */
+export async function shownSettings(frame) {
+  return JSON.parse(await frame.getAttribute("#summary", "data-settings"));
+}
+
+/** The final values the summary should show for `run`: at its stop event, else at its last output time. */
+export function finalValues(run) {
+  const stop = run.status === "stopped" ? run.events.at(-1) : null;
+  return Object.fromEntries([...run.states, ...run.helpers].map((n) => [n, stop ? stop.values[n] : run.values[n].at(-1)]));
+}
