@@ -1,6 +1,6 @@
 //! [`EmittedModel`]: a compiled sheet whose formulas run as emitted wasm.
 
-use super::lower::{module, EmitError};
+use super::lower::{module, rk4_module};
 use crate::problem::{EventSpec, NonFiniteCause, Problem};
 use crate::sheet::ir::Program;
 use crate::sheet::Model;
@@ -13,22 +13,27 @@ use std::sync::OnceLock;
 /// index into the solver's function table, where the loader installs it.
 pub type KernelFn = unsafe extern "C" fn(t: f64, y: *const f64, out: *mut f64, live: *const f64);
 
+/// The emitted RK4 stepper ([`lower::rk4_module`](super::lower::rk4_module)):
+/// `f(t, y, h, steps, live)` advances the states at `y` in place.
+pub type Rk4Fn = unsafe extern "C" fn(t: f64, y: *mut f64, h: f64, steps: i32, live: *const f64);
+
 /// What turns module bytes into callable kernels. Only the web layer can
 /// provide one (natively there is no wasm engine), and it registers it once
 /// with [`set_loader`].
 #[derive(Clone, Copy, Debug)]
 pub struct Loader {
     /// Compile and instantiate `bytes`, install its exports `names` and
-    /// return them in that order; `None` when the engine refuses (a
-    /// Content-Security-Policy without `'wasm-unsafe-eval'`, or any error).
+    /// return their function pointers as addresses (on wasm32, indices into
+    /// the solver's function table), in that order; `None` when the engine
+    /// refuses (a Content-Security-Policy without `'wasm-unsafe-eval'`, or
+    /// any error).
     ///
     /// # Safety contract
-    /// Each returned pointer must call a function of type
-    /// `(f64, i32, i32, i32) -> ()` that was produced by
-    /// [`lower::module`](super::lower::module) from these `bytes`.
-    pub load: fn(bytes: &[u8], names: &[&str]) -> Option<Vec<KernelFn>>,
-    /// Give back kernels that will not be called again.
-    pub release: fn(&[KernelFn]),
+    /// Each returned address must be a function pointer to the export of
+    /// that name of these `bytes`, with the export's own signature.
+    pub load: fn(bytes: &[u8], names: &[&str]) -> Option<Vec<usize>>,
+    /// Give back functions that will not be called again.
+    pub release: fn(&[usize]),
 }
 
 static LOADER: OnceLock<Loader> = OnceLock::new();
@@ -51,9 +56,20 @@ pub fn available() -> bool {
     LOADER.get().is_some() && ENABLED.load(Ordering::Relaxed)
 }
 
-/// Kernels of one instantiated module, given back when dropped.
+/// The exports of one instantiated module, as function addresses; given back
+/// when dropped.
 #[derive(Debug)]
-struct Kernels(Vec<KernelFn>);
+struct Kernels(Vec<usize>);
+
+impl Kernels {
+    /// Export `k` as a kernel.
+    fn kernel(&self, k: usize) -> KernelFn {
+        // SAFETY: every module loaded with `load` below for kernels holds
+        // only kernels (`lower::module`); the loader's contract makes the
+        // address a pointer to one.
+        unsafe { std::mem::transmute::<usize, KernelFn>(self.0[k]) }
+    }
+}
 
 impl Drop for Kernels {
     fn drop(&mut self) {
@@ -63,16 +79,20 @@ impl Drop for Kernels {
     }
 }
 
-/// Emit, load and install one module holding `programs` under `names`.
+/// Load and install the module `bytes`, with exports `names`.
+fn load_bytes(bytes: &[u8], names: &[&str]) -> Option<Kernels> {
+    let loader = LOADER.get()?;
+    let fns = (loader.load)(bytes, names)?;
+    (fns.len() == names.len() && fns.iter().all(|&f| f != 0)).then_some(Kernels(fns))
+}
+
+/// Emit, load and install one module holding `programs` as kernels under `names`.
 fn load(names: &[&str], programs: &[&Program]) -> Option<Kernels> {
     if !available() {
         return None;
     }
-    let loader = LOADER.get()?;
     let named: Vec<(&str, &Program)> = names.iter().copied().zip(programs.iter().copied()).collect();
-    let bytes = module(&named).map_err(|EmitError::TooLarge| ()).ok()?;
-    let fns = (loader.load)(&bytes, names)?;
-    (fns.len() == names.len()).then_some(Kernels(fns))
+    load_bytes(&module(&named).ok()?, names)
 }
 
 /// Where a kernel's results go: the number of outputs it writes.
@@ -110,6 +130,8 @@ pub struct EmittedModel {
     derivatives: Option<Kernels>,
     /// Whether the derivative module was tried for the current tapes.
     derivatives_tried: bool,
+    /// The RK4 stepper, once asked for; `None` inside when it could not be made.
+    stepper: Option<Option<Kernels>>,
     loads: u32,
     scratch: Vec<f64>,
 }
@@ -117,7 +139,15 @@ pub struct EmittedModel {
 impl EmittedModel {
     /// Wrap `model`, emitting its module when a loader is available.
     pub fn new(model: Model) -> Self {
-        let mut m = EmittedModel { model, main: None, derivatives: None, derivatives_tried: false, loads: 0, scratch: Vec::new() };
+        let mut m = EmittedModel {
+            model,
+            main: None,
+            derivatives: None,
+            derivatives_tried: false,
+            stepper: None,
+            loads: 0,
+            scratch: Vec::new(),
+        };
         m.reload();
         m
     }
@@ -126,6 +156,7 @@ impl EmittedModel {
         self.main = None;
         self.derivatives = None;
         self.derivatives_tried = false;
+        self.stepper = None;
         let m = &self.model;
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
@@ -172,7 +203,37 @@ impl EmittedModel {
     }
 
     fn main_kernel(&self, k: usize) -> Option<KernelFn> {
-        self.main.as_ref().map(|m| m.0[k])
+        self.main.as_ref().map(|m| m.kernel(k))
+    }
+
+    /// Take `steps` steps of size `h` of the classical RK4 method from
+    /// `(t, y)`, updating `y`, in one call of an emitted function that holds
+    /// the stage loop and the formulas together (see
+    /// [`lower::rk4_module`](super::lower::rk4_module) for the exact
+    /// arithmetic). Returns `false`, with `y` untouched, when no such
+    /// function can be emitted here or `y` is not `dim` long.
+    pub fn rk4_steps(&mut self, t: f64, y: &mut [f64], h: f64, steps: u32) -> bool {
+        if self.stepper.is_none() {
+            let made = if self.main.is_some() {
+                rk4_module(self.model.rhs_program()).ok().and_then(|b| load_bytes(&b, &["rk4"]))
+            } else {
+                None
+            };
+            self.loads += u32::from(made.is_some());
+            self.stepper = Some(made);
+        }
+        let Some(Some(k)) = &self.stepper else { return false };
+        if y.len() != self.model.dim() || steps > i32::MAX as u32 {
+            return false;
+        }
+        // SAFETY: the module holds only `rk4` (`lower::rk4_module`), of type
+        // `Rk4Fn`; it reads and writes `dim` states at `y` and reads the rate
+        // tape's live values.
+        unsafe {
+            let f = std::mem::transmute::<usize, Rk4Fn>(k.0[0]);
+            f(t, y.as_mut_ptr(), h, steps as i32, self.model.rhs_program().live_values().as_ptr());
+        }
+        true
     }
 
     fn derivative_kernel(&mut self, k: usize) -> Option<KernelFn> {
@@ -185,7 +246,7 @@ impl EmittedModel {
             self.derivatives = load(&DERIVATIVES, &[&jac, dfdt]);
             self.loads += u32::from(self.derivatives.is_some());
         }
-        self.derivatives.as_ref().map(|d| d.0[k])
+        self.derivatives.as_ref().map(|d| d.kernel(k))
     }
 
     /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`;
