@@ -288,9 +288,32 @@ pub fn bench_emit_solve_cases() -> Vec<String> {
     solve_sheets().into_iter().map(|(n, _)| n.to_string()).collect()
 }
 
+/// A problem of the solve benchmark, made once.
+struct SolveCase {
+    name: String,
+    kind: String,
+    problem: Box<dyn Problem>,
+    t0: f64,
+    y0: Vec<f64>,
+    to: f64,
+}
+
 thread_local! {
-    /// Problems for the solve benchmark, made once: `(name, kind, problem)`.
-    static SOLVE_READY: RefCell<Vec<(String, String, Box<dyn Problem>)>> = const { RefCell::new(Vec::new()) };
+    static SOLVE_READY: RefCell<Vec<SolveCase>> = const { RefCell::new(Vec::new()) };
+}
+
+fn solve_case(name: &str, kind: &str) -> Result<SolveCase, JsValue> {
+    let tp = crate::problems::by_name(name).ok_or_else(|| fault(format!("no problem {name}")))?;
+    let sheet = solve_sheets().into_iter().find(|(n, _)| *n == name).map(|(_, s)| s);
+    let sheet = sheet.ok_or_else(|| fault(format!("no sheet for {name}")))?;
+    let model = compile(&sheet).map_err(|e| fault(e.message()))?;
+    let problem: Box<dyn Problem> = match kind {
+        "rust" => (tp.make)(),
+        "interpreter" => Box::new(model),
+        "emitted" => Box::new(EmittedModel::new(model)),
+        _ => return Err(fault(format!("unknown kind {kind}"))),
+    };
+    Ok(SolveCase { name: name.into(), kind: kind.into(), problem, t0: tp.t0, y0: tp.y0, to: tp.t_end })
 }
 
 /// Solve shared problem `name` to its end with the default method and
@@ -300,27 +323,17 @@ thread_local! {
 /// (compiled, emitted) on the first call and reused after.
 #[wasm_bindgen(js_name = benchEmitSolve)]
 pub fn bench_emit_solve(name: &str, kind: &str) -> Result<Vec<f64>, JsValue> {
-    let tp = crate::problems::by_name(name).ok_or_else(|| fault(format!("no problem {name}")))?;
-    let have = SOLVE_READY.with(|r| r.borrow().iter().any(|(n, k, _)| n == name && k == kind));
-    if !have {
-        let sheet = solve_sheets().into_iter().find(|(n, _)| *n == name).map(|(_, s)| s);
-        let sheet = sheet.ok_or_else(|| fault(format!("no sheet for {name}")))?;
-        let model = compile(&sheet).map_err(|e| fault(e.message()))?;
-        let problem: Box<dyn Problem> = match kind {
-            "rust" => (tp.make)(),
-            "interpreter" => Box::new(model),
-            "emitted" => Box::new(EmittedModel::new(model)),
-            _ => return Err(fault(format!("unknown kind {kind}"))),
-        };
-        SOLVE_READY.with(|r| r.borrow_mut().push((name.to_string(), kind.to_string(), problem)));
+    let find = |r: &[SolveCase]| r.iter().position(|c| c.name == name && c.kind == kind);
+    if SOLVE_READY.with(|r| find(&r.borrow())).is_none() {
+        let c = solve_case(name, kind)?;
+        SOLVE_READY.with(|r| r.borrow_mut().push(c));
     }
-    let settings = Settings { to: tp.t_end, ..Settings::default() };
     SOLVE_READY.with(|r| {
         let mut r = r.borrow_mut();
-        let Some((_, _, problem)) = r.iter_mut().find(|(n, k, _)| n == name && k == kind) else {
-            return Err(fault(format!("no problem {name}")));
-        };
-        let run = crate::solve::solve(problem.as_mut(), tp.t0, &tp.y0, &settings).map_err(|e| fault(format!("{e:?}")))?;
+        let k = find(&r).ok_or_else(|| fault(format!("no problem {name}")))?;
+        let c = &mut r[k];
+        let settings = Settings { to: c.to, ..Settings::default() };
+        let run = crate::solve::solve(c.problem.as_mut(), c.t0, &c.y0, &settings).map_err(|e| fault(format!("{e:?}")))?;
         let mut out = vec![run.stats.steps as f64, run.stats.rhs_evals as f64];
         out.extend(run.states.iter().map(|s| s.last().copied().unwrap_or(f64::NAN)));
         Ok(out)
