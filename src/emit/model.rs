@@ -5,6 +5,7 @@ use crate::problem::{EventSpec, NonFiniteCause, Problem};
 use crate::sheet::ir::Program;
 use crate::sheet::Model;
 use std::sync::atomic::{AtomicBool, Ordering};
+use std::borrow::BorrowMut;
 use std::sync::OnceLock;
 
 /// An emitted kernel as the solver calls it: `f(t, y, out, live)`, reading
@@ -123,9 +124,8 @@ const DERIVATIVES: [&str; 2] = ["jacobian", "dfdt"];
 /// parameters are read from the tapes' own memory, so changing one
 /// ([`set_param`](Self::set_param)) needs no new module. The Jacobian and
 /// `∂f/∂t` get a second module the first time they are asked for.
-#[derive(Debug)]
-pub struct EmittedModel {
-    model: Model,
+pub struct EmittedModel<M: BorrowMut<Model> = Model> {
+    model: M,
     main: Option<Kernels>,
     derivatives: Option<Kernels>,
     /// Whether the derivative module was tried for the current tapes.
@@ -136,9 +136,10 @@ pub struct EmittedModel {
     scratch: Vec<f64>,
 }
 
-impl EmittedModel {
-    /// Wrap `model`, emitting its module when a loader is available.
-    pub fn new(model: Model) -> Self {
+impl<M: BorrowMut<Model>> EmittedModel<M> {
+    /// Wrap `model` (a [`Model`] or a `&mut Model`), emitting its module
+    /// when a loader is available.
+    pub fn new(model: M) -> Self {
         let mut m = EmittedModel {
             model,
             main: None,
@@ -157,7 +158,7 @@ impl EmittedModel {
         self.derivatives = None;
         self.derivatives_tried = false;
         self.stepper = None;
-        let m = &self.model;
+        let m: &Model = self.model.borrow();
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
         self.scratch = vec![0.0; m.all_program().outputs().len()];
@@ -176,11 +177,11 @@ impl EmittedModel {
 
     /// The wrapped model.
     pub fn model(&self) -> &Model {
-        &self.model
+        self.model.borrow()
     }
 
     /// Unwrap the model.
-    pub fn into_model(self) -> Model {
+    pub fn into_model(self) -> M {
         let EmittedModel { model, .. } = self;
         model
     }
@@ -188,8 +189,8 @@ impl EmittedModel {
     /// [`Model::set_param`]: for a live parameter no new module is needed;
     /// for any other the sheet recompiles and the module is emitted again.
     pub fn set_param(&mut self, name: &str, value: f64) -> bool {
-        let live = self.model.live().iter().any(|l| l == name);
-        let ok = self.model.set_param(name, value);
+        let live = self.model.borrow().live().iter().any(|l| l == name);
+        let ok = self.model.borrow_mut().set_param(name, value);
         if ok && !live {
             self.reload();
         }
@@ -198,7 +199,7 @@ impl EmittedModel {
 
     /// [`Model::set_live`], then a new module for the new tapes.
     pub fn set_live(&mut self, names: &[&str]) {
-        self.model.set_live(names);
+        self.model.borrow_mut().set_live(names);
         self.reload();
     }
 
@@ -215,7 +216,7 @@ impl EmittedModel {
     pub fn rk4_steps(&mut self, t: f64, y: &mut [f64], h: f64, steps: u32) -> bool {
         if self.stepper.is_none() {
             let made = if self.main.is_some() {
-                rk4_module(self.model.rhs_program()).ok().and_then(|b| load_bytes(&b, &["rk4"]))
+                rk4_module(self.model.borrow().rhs_program()).ok().and_then(|b| load_bytes(&b, &["rk4"]))
             } else {
                 None
             };
@@ -223,7 +224,7 @@ impl EmittedModel {
             self.stepper = Some(made);
         }
         let Some(Some(k)) = &self.stepper else { return false };
-        if y.len() != self.model.dim() || steps > i32::MAX as u32 {
+        if y.len() != self.model.borrow().dim() || steps > i32::MAX as u32 {
             return false;
         }
         // SAFETY: the module holds only `rk4` (`lower::rk4_module`), of type
@@ -231,7 +232,7 @@ impl EmittedModel {
         // tape's live values.
         unsafe {
             let f = std::mem::transmute::<usize, Rk4Fn>(k.0[0]);
-            f(t, y.as_mut_ptr(), h, steps as i32, self.model.rhs_program().live_values().as_ptr());
+            f(t, y.as_mut_ptr(), h, steps as i32, self.model.borrow().rhs_program().live_values().as_ptr());
         }
         true
     }
@@ -239,10 +240,10 @@ impl EmittedModel {
     fn derivative_kernel(&mut self, k: usize) -> Option<KernelFn> {
         if !self.derivatives_tried && self.main.is_some() {
             self.derivatives_tried = true;
-            self.model.jacobian_program();
-            self.model.time_derivative_program();
-            let jac = self.model.jacobian_program().clone();
-            let dfdt = self.model.time_derivative_program();
+            self.model.borrow_mut().jacobian_program();
+            self.model.borrow_mut().time_derivative_program();
+            let jac = self.model.borrow_mut().jacobian_program().clone();
+            let dfdt = self.model.borrow_mut().time_derivative_program();
             self.derivatives = load(&DERIVATIVES, &[&jac, dfdt]);
             self.loads += u32::from(self.derivatives.is_some());
         }
@@ -252,9 +253,9 @@ impl EmittedModel {
     /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`;
     /// `false` when it is not emitted or the lengths do not fit.
     fn run_derivative(&mut self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
-        let dim = self.model.dim();
+        let dim = self.model.borrow().dim();
         let Some(f) = self.derivative_kernel(k) else { return false };
-        let p = if k == 0 { self.model.jacobian_program() } else { self.model.time_derivative_program() };
+        let p = if k == 0 { self.model.borrow_mut().jacobian_program() } else { self.model.borrow_mut().time_derivative_program() };
         if !fits(p, dim, y, out) {
             return false;
         }
@@ -264,39 +265,39 @@ impl EmittedModel {
     }
 }
 
-impl Problem for EmittedModel {
+impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     fn dim(&self) -> usize {
-        self.model.dim()
+        self.model.borrow().dim()
     }
 
     fn state_names(&self) -> &[String] {
-        self.model.state_names()
+        self.model.borrow().state_names()
     }
 
     fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-        let p = self.model.rhs_program();
+        let p = self.model.borrow().rhs_program();
         match self.main_kernel(0) {
             // SAFETY: kernel 0 of the main module is emitted from this tape; `fits` checked the lengths.
-            Some(f) if fits(p, self.model.dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
-            _ => self.model.rhs(t, y, dy),
+            Some(f) if fits(p, self.model.borrow().dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
+            _ => self.model.borrow_mut().rhs(t, y, dy),
         }
     }
 
     fn jacobian(&mut self, t: f64, y: &[f64], jac: &mut [f64]) -> bool {
-        self.run_derivative(0, t, y, jac) || self.model.jacobian(t, y, jac)
+        self.run_derivative(0, t, y, jac) || self.model.borrow_mut().jacobian(t, y, jac)
     }
 
     fn time_derivative(&mut self, t: f64, y: &[f64], dfdt: &mut [f64]) -> bool {
-        self.run_derivative(1, t, y, dfdt) || self.model.time_derivative(t, y, dfdt)
+        self.run_derivative(1, t, y, dfdt) || self.model.borrow_mut().time_derivative(t, y, dfdt)
     }
 
     fn helper_names(&self) -> &[String] {
-        self.model.helper_names()
+        self.model.borrow().helper_names()
     }
 
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let dim = self.model.dim();
-        let p = self.model.all_program();
+        let dim = self.model.borrow().dim();
+        let p = self.model.borrow().all_program();
         match self.main_kernel(1) {
             Some(f) if fits(p, dim, y, &self.scratch) => {
                 // SAFETY: kernel 1 of the main module is emitted from this tape; lengths checked.
@@ -305,38 +306,38 @@ impl Problem for EmittedModel {
                     *o = *v;
                 }
             }
-            _ => self.model.helpers(t, y, out),
+            _ => self.model.borrow_mut().helpers(t, y, out),
         }
     }
 
     fn events(&self) -> &[EventSpec] {
-        self.model.events()
+        self.model.borrow().events()
     }
 
     fn event_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.event_program();
+        let p = self.model.borrow().event_program();
         match self.main_kernel(2) {
             // SAFETY: kernel 2 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.event_values(t, y, out),
+            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
+            _ => self.model.borrow_mut().event_values(t, y, out),
         }
     }
 
     fn switch_count(&self) -> usize {
-        self.model.switch_count()
+        self.model.borrow().switch_count()
     }
 
     fn switch_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.switch_program();
+        let p = self.model.borrow().switch_program();
         match self.main_kernel(3) {
             // SAFETY: kernel 3 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.switch_values(t, y, out),
+            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
+            _ => self.model.borrow_mut().switch_values(t, y, out),
         }
     }
 
     fn explain_nonfinite(&mut self, t: f64, y: &[f64]) -> Option<NonFiniteCause> {
         // A diagnosis after the fact: the interpreter keeps every slot to look at.
-        self.model.explain_nonfinite(t, y)
+        self.model.borrow_mut().explain_nonfinite(t, y)
     }
 }

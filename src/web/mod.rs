@@ -5,6 +5,7 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+#[cfg(feature = "bench")]
 mod bench_emit;
 mod emit;
 
