@@ -7,6 +7,7 @@ use crate::api;
 
 #[cfg(feature = "bench")]
 mod bench_emit;
+mod bench_stiff;
 mod emit;
 
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
