@@ -10,9 +10,19 @@ import { initSync, dropInstance } from "./pkg/ratebook.js";
 let guardModule = null;
 let panicCount = 0;
 
-/** Remember the compiled solver module to re-instantiate from. */
+/**
+ * Remember the compiled solver module to re-instantiate from. An abort that
+ * escapes unguarded (an event handler calling the solver directly) still
+ * gets a fresh instance, when it reaches the global error handlers.
+ */
 export function initGuard(module) {
+  const first = guardModule === null;
   guardModule = module;
+  if (first && typeof globalThis.addEventListener === "function") {
+    const onAbort = (e) => { if (isAbort(e)) recoverSolver(); };
+    globalThis.addEventListener("error", (ev) => onAbort(ev.error));
+    globalThis.addEventListener("unhandledrejection", (ev) => onAbort(ev.reason));
+  }
 }
 
 /** The error a guarded call throws after a panic (the solver is usable again). */
