@@ -12,8 +12,11 @@
 //!   5. one slot per instruction: instruction `k` writes slot
 //!      [`Program::first_inst_slot`]` + k`.
 //! - Instructions run in order. Each reads its operand slots `a` and `b`
-//!   (always earlier slots; `b` equals `a` for one-operand operations) and
-//!   its immediate `c`, and writes [`apply`]`(op, s[a], s[b], c)`.
+//!   `a`, `b` and `d` (always earlier slots; an operand the operation does
+//!   not use repeats `a`) and its immediate `c`, and writes
+//!   [`apply`]`(op, s[a], s[b], s[d], c)`.
+//! - Fused operations (`MulAdd`, `AddMulC`, …) round after each step, exactly
+//!   like the pair they replace; none is a fused multiply-add.
 //! - The results are the slots listed in [`Program::outputs`], in order.
 //!
 //! Every slot is written once per run, so a translator may keep each slot in
@@ -36,8 +39,8 @@ pub enum Op {
     Rem,
     /// `x.powf(y)`
     Pow,
-    /// `x.atan2(y)`: the angle of the point `(y, x)`, i.e. `atan2(x, y)` with
-    /// `x` the ordinate.
+    /// `x.atan2(y)`: the angle whose tangent is `x / y`, in the quadrant of
+    /// the point with abscissa `y` and ordinate `x` (meval's `atan2(x, y)`).
     Atan2,
     /// `x.min(y)` (a NaN operand yields the other operand).
     Min,
@@ -111,25 +114,52 @@ pub enum Op {
     Sign,
     /// `step(x)`: `1` at or above zero, `0` below, NaN for NaN.
     Step,
+    /// Fused `x * y + z` (two roundings, like the unfused pair).
+    MulAdd,
+    /// Fused `x * y - z`.
+    MulSub,
+    /// Fused `z - x * y`.
+    NegMulAdd,
+    /// Fused `x + y * c`.
+    AddMulC,
+    /// Fused `x - y * c`.
+    SubMulC,
+    /// Fused `x * c - y`.
+    MulCSub,
+    /// Fused `(x + y) * c`.
+    AddThenMulC,
+    /// Fused `(x - y) * c`.
+    SubThenMulC,
 }
 
 impl Op {
     /// Whether the operation reads its second operand `b`.
     pub fn is_binary(self) -> bool {
         use Op::*;
-        matches!(self, Add | Sub | Mul | Div | Rem | Pow | Atan2 | Min | Max | Hypot)
+        matches!(
+            self,
+            Add | Sub | Mul | Div | Rem | Pow | Atan2 | Min | Max | Hypot | MulAdd | MulSub | NegMulAdd | AddMulC
+                | SubMulC | MulCSub | AddThenMulC | SubThenMulC
+        )
+    }
+
+    /// Whether the operation reads its third operand `d`.
+    pub fn is_ternary(self) -> bool {
+        use Op::*;
+        matches!(self, MulAdd | MulSub | NegMulAdd)
     }
 
     /// Whether the operation reads its immediate `c`.
     pub fn uses_immediate(self) -> bool {
         use Op::*;
-        matches!(self, AddC | MulC | CSub | DivC | CDiv | PowC | CPow)
+        matches!(self, AddC | MulC | CSub | DivC | CDiv | PowC | CPow | AddMulC | SubMulC | MulCSub | AddThenMulC | SubThenMulC)
     }
 }
 
-/// The meaning of every operation: `x = s[a]`, `y = s[b]`, `c` the immediate.
+/// The meaning of every operation: `x = s[a]`, `y = s[b]`, `z = s[d]`, `c`
+/// the immediate.
 #[inline(always)]
-pub fn apply(op: Op, x: f64, y: f64, c: f64) -> f64 {
+pub fn apply(op: Op, x: f64, y: f64, z: f64, c: f64) -> f64 {
     use Op::*;
     match op {
         Add => x + y,
@@ -193,10 +223,18 @@ pub fn apply(op: Op, x: f64, y: f64, c: f64) -> f64 {
                 x
             }
         }
+        MulAdd => x * y + z,
+        MulSub => x * y - z,
+        NegMulAdd => z - x * y,
+        AddMulC => x + y * c,
+        SubMulC => x - y * c,
+        MulCSub => x * c - y,
+        AddThenMulC => (x + y) * c,
+        SubThenMulC => (x - y) * c,
     }
 }
 
-/// One instruction: `s[first_inst_slot + k] = apply(op, s[a], s[b], c)`.
+/// One instruction: `s[first_inst_slot + k] = apply(op, s[a], s[b], s[d], c)`.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Inst {
     /// The operation.
@@ -205,6 +243,8 @@ pub struct Inst {
     pub a: u32,
     /// Second operand slot; equal to `a` when the operation has one operand.
     pub b: u32,
+    /// Third operand slot; equal to `a` unless the operation has three operands.
+    pub d: u32,
     /// Immediate constant; `0.0` when the operation has none.
     pub c: f64,
 }
@@ -240,7 +280,7 @@ impl Program {
         }
         for (k, i) in insts.iter().enumerate() {
             let me = first + k;
-            if i.a as usize >= me || i.b as usize >= me {
+            if i.a as usize >= me || i.b as usize >= me || i.d as usize >= me {
                 return None;
             }
         }
@@ -315,7 +355,8 @@ impl Program {
         for (k, i) in self.insts.iter().enumerate() {
             let x = slots[i.a as usize];
             let y = slots[i.b as usize];
-            slots[first + k] = apply(i.op, x, y, i.c);
+            let z = slots[i.d as usize];
+            slots[first + k] = apply(i.op, x, y, z, i.c);
         }
     }
 

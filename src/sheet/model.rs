@@ -396,6 +396,7 @@ fn first_cause(p: &Program, target: usize) -> String {
             let i = p.insts()[slot - first];
             feeds[i.a as usize] = true;
             feeds[i.b as usize] = true;
+            feeds[i.d as usize] = true;
         }
     }
     if let Some(k) = (1 + p.dim()..first).find(|&k| feeds[k] && !s[k].is_finite()) {
@@ -408,7 +409,7 @@ fn first_cause(p: &Program, target: usize) -> String {
     for slot in first..s.len() {
         let i = p.insts()[slot - first];
         let (x, y) = (s[i.a as usize], s[i.b as usize]);
-        if feeds[slot] && !s[slot].is_finite() && x.is_finite() && y.is_finite() {
+        if feeds[slot] && !s[slot].is_finite() && x.is_finite() && y.is_finite() && s[i.d as usize].is_finite() {
             return describe(i.op, x, y, i.c);
         }
     }
