@@ -352,11 +352,20 @@ impl Program {
         for (s, &v) in slots[1..=self.dim].iter_mut().zip(y) {
             *s = v;
         }
+        if slots.len() != first + self.insts.len() {
+            return; // cannot happen: the slot array is sized once, in `new`
+        }
         for (k, i) in self.insts.iter().enumerate() {
-            let x = slots[i.a as usize];
-            let y = slots[i.b as usize];
-            let z = slots[i.d as usize];
-            slots[first + k] = apply(i.op, x, y, z, i.c);
+            // SAFETY: `Program::new`, the only constructor, refuses any
+            // instruction whose operands are not earlier slots, and the check
+            // above confirms the slot array holds `first + insts.len()`
+            // entries. So `a, b, d < first + k < slots.len()`.
+            unsafe {
+                let x = *slots.get_unchecked(i.a as usize);
+                let y = *slots.get_unchecked(i.b as usize);
+                let z = *slots.get_unchecked(i.d as usize);
+                *slots.get_unchecked_mut(first + k) = apply(i.op, x, y, z, i.c);
+            }
         }
     }
 
