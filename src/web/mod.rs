@@ -5,6 +5,8 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+mod emit;
+
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
     let s = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true);
     v.serialize(&s).map_err(|e| JsValue::from(js_sys::Error::new(&e.to_string())))
@@ -20,14 +22,15 @@ fn error_with(message: &str, props: &[(&str, f64)]) -> JsValue {
 
 fn api_error(e: api::ApiError) -> JsValue {
     match e {
-        api::ApiError::Sheet(f) => error_with(&f.message, &[("line", f.line as f64), ("column", f.column as f64)]),
-        api::ApiError::Settings(m) => error_with(&m, &[]),
+        api::ApiError::Sheet(f) => error_with(&f.message(), &[("line", f.line as f64), ("column", f.column as f64)]),
+        api::ApiError::Settings(s) => error_with(&s.to_string(), &[]),
     }
 }
 
 /// Report panics on the console instead of dying silently.
 #[wasm_bindgen(start)]
 pub fn start() {
+    emit::register();
     std::panic::set_hook(Box::new(|info| {
         web_sys::console::error_1(&JsValue::from_str(&format!("ratebook: internal error: {info}")));
     }));
