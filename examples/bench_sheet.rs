@@ -119,12 +119,13 @@ fn main() {
         let ratio = ts / th;
         println!("| `{}` | {:.2} | {:.2} | {:.2} |{}", c.name, ts, th, ratio, if agree { "" } else { " values differ!" });
         rows.push(format!(
-            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"agree\": {}}}",
+            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"steps\": {}, \"agree\": {}}}",
             c.name,
             ts,
             th,
             ratio,
             model.rhs_program().insts().len(),
+            model.rhs_program().steps(),
             agree
         ));
     }

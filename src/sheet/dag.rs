@@ -127,7 +127,7 @@ impl Graph {
     /// A one-operand operation, folded when its operand is constant.
     pub fn unary(&mut self, op: Op, a: Id) -> Id {
         if let Some(x) = self.as_const(a) {
-            return self.constant(apply(op, x, x, x, 0.0));
+            return self.constant(apply(op, x, x, 0.0));
         }
         if op == Op::Neg {
             if let Node::Op { op: Op::Neg, a: inner, .. } = self.node(a) {
@@ -146,7 +146,7 @@ impl Graph {
         use Op::*;
         let (ca, cb) = (self.as_const(a), self.as_const(b));
         if let (Some(x), Some(y)) = (ca, cb) {
-            return self.constant(apply(op, x, y, y, 0.0));
+            return self.constant(apply(op, x, y, 0.0));
         }
         match (op, ca, cb) {
             (Add, _, Some(c)) => self.with_const(AddC, a, c),
@@ -429,10 +429,6 @@ impl Graph {
                 self.d_div(da, den)
             }
             Floor | Ceil | Round | Trunc | Signum | Sign | Step => zero,
-            // Fused operations exist only in scheduled programs, never in a graph.
-            MulAdd | MulSub | NegMulAdd | AddMulC | SubMulC | MulCSub | AddThenMulC | SubThenMulC => {
-                self.constant(f64::NAN)
-            }
             AddC => da,
         }
     }
@@ -459,9 +455,6 @@ impl Graph {
     /// Schedule the nodes `roots` need into a [`Program`] whose outputs are
     /// the roots' values, in order. `live` gives the live parameters' names
     /// and current values, indexed like [`Node::Live`].
-    ///
-    /// A node used exactly once, by one operation, may be fused into its user
-    /// (see [`fuse`]); it then gets no slot of its own.
     pub fn schedule(&self, dim: usize, live: &[(String, f64)], roots: &[Id]) -> Program {
         let seen = self.reachable(roots);
         let n_live = live.len();
@@ -483,49 +476,12 @@ impl Graph {
                 Node::Op { .. } => continue,
             };
         }
-        // Uses of each node by reachable operations; roots count as a use.
-        let mut uses = vec![0u32; seen.len()];
-        for &r in roots {
-            uses[r as usize] += 2;
-        }
-        for (id, &s) in seen.iter().enumerate() {
-            if let (true, Node::Op { op, a, b, .. }) = (s, self.nodes[id]) {
-                uses[a as usize] += 1;
-                if op.is_binary() && b != a {
-                    uses[b as usize] += 1;
-                } else if op.is_binary() {
-                    uses[a as usize] += 1;
-                }
-            }
-        }
-        // Decide fusions in id order: a node may absorb a single-use operand
-        // that itself absorbed nothing.
-        let mut absorbed = vec![false; seen.len()];
-        let mut fused: Vec<Option<(Op, Id, Id, Id, f64)>> = vec![None; seen.len()];
-        for id in 0..seen.len() {
-            let Node::Op { op, a, b, c } = self.nodes[id] else { continue };
-            if !seen[id] {
-                continue;
-            }
-            let plain = |k: Id| -> Option<(Op, Id, Id, f64)> {
-                let k = k as usize;
-                match self.nodes[k] {
-                    Node::Op { op, a, b, c } if uses[k] == 1 && fused[k].is_none() && !absorbed[k] => Some((op, a, b, c)),
-                    _ => None,
-                }
-            };
-            if let Some((f, x, y, z, cc, inner)) = fuse(op, a, b, c, plain) {
-                fused[id] = Some((f, x, y, z, cc));
-                absorbed[inner as usize] = true;
-            }
-        }
         let first = (1 + dim + n_live + consts.len()) as u32;
         let mut insts = Vec::new();
         for (id, &s) in seen.iter().enumerate() {
-            if let (true, false, Node::Op { op, a, b, c }) = (s, absorbed[id], self.nodes[id]) {
-                let (op, a, b, d, c) = fused[id].unwrap_or((op, a, b, a, c));
+            if let (true, Node::Op { op, a, b, c }) = (s, self.nodes[id]) {
                 slot[id] = first + insts.len() as u32;
-                insts.push(Inst { op, a: slot[a as usize], b: slot[b as usize], d: slot[d as usize], c });
+                insts.push(Inst { op, a: slot[a as usize], b: slot[b as usize], c });
             }
         }
         let outputs = roots.iter().map(|&r| slot[r as usize]).collect();
@@ -538,40 +494,3 @@ impl Graph {
     }
 }
 
-/// The fused form of `op(a, b, c)` when an operand is a single-use operation
-/// that `plain` returns (as `(op, a, b, c)`): `(fused op, x, y, z, c, the
-/// absorbed operand)`. Each fused form rounds exactly like the pair it
-/// replaces, so results do not change.
-#[allow(clippy::type_complexity)]
-fn fuse(
-    op: Op,
-    a: Id,
-    b: Id,
-    c: f64,
-    plain: impl Fn(Id) -> Option<(Op, Id, Id, f64)>,
-) -> Option<(Op, Id, Id, Id, f64, Id)> {
-    use Op::*;
-    match op {
-        Add | Sub => {
-            if let Some((MulC, x, _, k)) = plain(b) {
-                return Some((if op == Add { AddMulC } else { SubMulC }, a, x, a, k, b));
-            }
-            if let Some((MulC, x, _, k)) = plain(a) {
-                return Some(if op == Add { (AddMulC, b, x, b, k, a) } else { (MulCSub, x, b, x, k, a) });
-            }
-            if let Some((Mul, x, y, _)) = plain(b) {
-                return Some(if op == Add { (MulAdd, x, y, a, 0.0, b) } else { (NegMulAdd, x, y, a, 0.0, b) });
-            }
-            if let Some((Mul, x, y, _)) = plain(a) {
-                return Some((if op == Add { MulAdd } else { MulSub }, x, y, b, 0.0, a));
-            }
-            None
-        }
-        MulC => match plain(a) {
-            Some((Add, x, y, _)) => Some((AddThenMulC, x, y, x, c, a)),
-            Some((Sub, x, y, _)) => Some((SubThenMulC, x, y, x, c, a)),
-            _ => None,
-        },
-        _ => None,
-    }
-}
