@@ -127,6 +127,11 @@ const DERIVATIVES: [&str; 2] = ["jacobian", "dfdt"];
 pub struct EmittedModel<M: BorrowMut<Model> = Model> {
     model: M,
     main: Option<Kernels>,
+    /// The hot path: the rates kernel, the number of states and the rate
+    /// tape's live values. The pointer stays valid until the tapes are
+    /// rebuilt, which only [`reload`](Self::reload) follows: a tape's slot
+    /// array is allocated once and written in place.
+    rates: Option<(KernelFn, usize, *const f64)>,
     derivatives: Option<Kernels>,
     /// Whether the derivative module was tried for the current tapes.
     derivatives_tried: bool,
@@ -143,6 +148,7 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         let mut m = EmittedModel {
             model,
             main: None,
+            rates: None,
             derivatives: None,
             derivatives_tried: false,
             stepper: None,
@@ -155,12 +161,18 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
 
     fn reload(&mut self) {
         self.main = None;
+        self.rates = None;
         self.derivatives = None;
         self.derivatives_tried = false;
         self.stepper = None;
         let m: &Model = self.model.borrow();
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
+        let rhs = m.rhs_program();
+        self.rates = self.main.as_ref().map(|k| (k.kernel(0), m.dim(), rhs.live_values().as_ptr()));
+        if rhs.dim() != m.dim() || rhs.outputs().len() != m.dim() {
+            self.rates = None;
+        }
         self.scratch = vec![0.0; m.all_program().outputs().len()];
     }
 
@@ -275,10 +287,10 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-        let p = self.model.borrow().rhs_program();
-        match self.main_kernel(0) {
-            // SAFETY: kernel 0 of the main module is emitted from this tape; `fits` checked the lengths.
-            Some(f) if fits(p, self.model.borrow().dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
+        match self.rates {
+            // SAFETY: the rates kernel reads `n` states and the rate tape's
+            // live values (still at `live`, see `rates`) and writes `n` rates.
+            Some((f, n, live)) if y.len() >= n && dy.len() >= n => unsafe { f(t, y.as_ptr(), dy.as_mut_ptr(), live) },
             _ => self.model.borrow_mut().rhs(t, y, dy),
         }
     }
