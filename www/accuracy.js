@@ -6,10 +6,11 @@
 import { solve, methods } from "./pkg/ratebook.js";
 import { el, fmt } from "./dom.js";
 
-const FIXED_STEP = new Set(methods().filter((m) => !m.adaptive).map((m) => m.id));
+// Read when first needed: the solver is started by app.js after the imports.
+const isFixedStep = (id) => methods().some((m) => m.id === id && !m.adaptive);
 
 export function renderAccuracy(container, sheet, settings, run) {
-  const fixed = FIXED_STEP.has(settings.method);
+  const fixed = isFixedStep(settings.method);
   const tighter = fixed
     ? { ...settings, step: settings.step / 2 }
     : { ...settings, rtol: (settings.rtol ?? 1e-6) / 100, atol: (settings.atol ?? 1e-9) / 100 };
