@@ -6,6 +6,8 @@
 use serde::ser::SerializeMap;
 use serde::{Deserialize, Serialize, Serializer};
 
+pub mod study;
+
 /// Settings of one run, as the JS API takes them (`solve(sheet, settings)`).
 #[derive(Clone, Debug, Default, Deserialize)]
 #[serde(rename_all = "camelCase", default)]

@@ -65,3 +65,5 @@ pub fn draw_time_plot(canvas: web_sys::HtmlCanvasElement, sheet: &str, settings:
     crate::draw::time_plot(&backend.into_drawing_area(), &run.independent, &curves)
         .map_err(|e| error_with(&e.0, &[]))
 }
+
+mod study;
