@@ -82,7 +82,31 @@ pub trait Stepper {
     /// change of method the next step starts afresh.
     fn restart(&mut self);
 
-    /// Dense output over the last accepted step `[t, t + h]`: the state at
-    /// `t + theta·h`, `0 ≤ theta ≤ 1`, into `out`.
+    /// Dense output over the step of the last successful attempt `[t, t + h]`
+    /// (the step the driver is about to accept, or has just accepted): the
+    /// state at `t + theta·h`, `0 ≤ theta ≤ 1`, into `out`. The driver calls
+    /// [`Stepper::prepare_dense`] first.
     fn dense(&self, theta: f64, out: &mut [f64]);
+
+    /// Make [`Stepper::dense`] ready for the last successful attempt. A method
+    /// whose continuous extension needs extra stages computes them here, so
+    /// that a run which needs no dense output does not pay for it. Called at
+    /// most once per attempt, before any `dense` call for it.
+    fn prepare_dense(&mut self, _problem: &mut dyn Problem, _stats: &mut Stats) {}
+
+    /// The time derivative `dy/dt` of the dense output at `t + theta·h`, into
+    /// `out` (for locating peaks and troughs). The default differentiates
+    /// [`Stepper::dense`] numerically; a method with a polynomial continuous
+    /// extension gives it exactly. `h` is the step of the last attempt.
+    fn dense_slope(&self, theta: f64, h: f64, out: &mut [f64]) {
+        let n = out.len();
+        let d = 1e-5;
+        let (a, b) = if theta + d <= 1.0 { (theta, theta + d) } else { (theta - d, theta) };
+        let mut lo = vec![0.0; n];
+        self.dense(a, &mut lo);
+        self.dense(b, out);
+        for (o, l) in out.iter_mut().zip(&lo) {
+            *o = (*o - l) / (d * h);
+        }
+    }
 }

@@ -1,0 +1,211 @@
+//! The method registry: every method a run can name, with its facts.
+//!
+//! Adding an explicit method is one [`Tableau`] in `tableau.rs` plus one entry
+//! here. A method with its own stepper (the stiff methods) gives a `build`
+//! function instead of a tableau.
+
+use super::explicit::ExplicitStepper;
+use super::stepper::Stepper;
+use super::tableau::{self, Tableau};
+use super::Switching;
+
+/// One method of the registry.
+#[derive(serde::Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct MethodInfo {
+    /// Stable id used by the JS API and the sheet, e.g. `dp54`.
+    pub id: &'static str,
+    /// Full name, e.g. `Dormand–Prince 5(4)`.
+    pub name: &'static str,
+    /// Order of the solution.
+    pub order: u32,
+    /// Order of the embedded solution used for the error estimate (`None` for
+    /// fixed-step methods).
+    pub embedded_order: Option<u32>,
+    /// Stages per step (the FSAL stage included).
+    pub stages: u32,
+    /// First same as last: the last stage of a step is the first of the next.
+    pub fsal: bool,
+    /// Chooses its own step from rtol/atol (otherwise it needs `step`).
+    pub adaptive: bool,
+    /// Implicit or linearly implicit (suits stiff problems).
+    pub implicit: bool,
+    /// The paper or book the coefficients come from, with table or page.
+    pub reference: &'static str,
+    /// One line on when to use it.
+    pub summary: &'static str,
+    /// Order of the continuous extension used for `at` output and events.
+    pub dense_order: u32,
+    /// The tableau, for explicit Runge–Kutta methods.
+    #[serde(skip)]
+    pub tableau: Option<&'static Tableau>,
+    /// Builds the stepper for a system of `dim` states.
+    #[serde(skip)]
+    pub build: fn(dim: usize) -> Box<dyn Stepper>,
+    /// Builds the policy that may change method during a run (`auto`).
+    #[serde(skip)]
+    pub switching: Option<fn() -> Box<dyn Switching>>,
+}
+
+impl std::fmt::Debug for MethodInfo {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("MethodInfo").field("id", &self.id).finish_non_exhaustive()
+    }
+}
+
+macro_rules! explicit_builder {
+    ($fn_name:ident, $tab:path) => {
+        fn $fn_name(dim: usize) -> Box<dyn Stepper> {
+            Box::new(ExplicitStepper::new(&$tab, dim))
+        }
+    };
+}
+explicit_builder!(build_euler, tableau::EULER);
+explicit_builder!(build_heun, tableau::HEUN);
+explicit_builder!(build_midpoint, tableau::MIDPOINT);
+explicit_builder!(build_rk4, tableau::RK4);
+explicit_builder!(build_bs32, tableau::BS32);
+explicit_builder!(build_dp54, tableau::DP54);
+explicit_builder!(build_dp853, tableau::DP853);
+
+/// The registry, in the order a menu would show it.
+static REGISTRY: [MethodInfo; 8] = [
+    MethodInfo {
+        id: "euler",
+        name: "Euler",
+        order: 1,
+        embedded_order: None,
+        stages: 1,
+        fsal: false,
+        adaptive: false,
+        implicit: false,
+        reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.1",
+        summary: "First order, one evaluation per step; error falls only in proportion to h. For teaching and comparison.",
+        dense_order: 1,
+        tableau: Some(&tableau::EULER),
+        build: build_euler,
+        switching: None,
+    },
+    MethodInfo {
+        id: "heun",
+        name: "Heun (improved Euler)",
+        order: 2,
+        embedded_order: None,
+        stages: 2,
+        fsal: false,
+        adaptive: false,
+        implicit: false,
+        reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.1, eq. (1.10)",
+        summary: "Second order, two evaluations per step; explicit trapezoid rule.",
+        dense_order: 2,
+        tableau: Some(&tableau::HEUN),
+        build: build_heun,
+        switching: None,
+    },
+    MethodInfo {
+        id: "midpoint",
+        name: "Explicit midpoint",
+        order: 2,
+        embedded_order: None,
+        stages: 2,
+        fsal: false,
+        adaptive: false,
+        implicit: false,
+        reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.1, eq. (1.9)",
+        summary: "Second order, two evaluations per step; Runge's midpoint rule.",
+        dense_order: 2,
+        tableau: Some(&tableau::MIDPOINT),
+        build: build_midpoint,
+        switching: None,
+    },
+    MethodInfo {
+        id: "rk4",
+        name: "Classical Runge–Kutta",
+        order: 4,
+        embedded_order: None,
+        stages: 4,
+        fsal: false,
+        adaptive: false,
+        implicit: false,
+        reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.1, Table 1.2",
+        summary: "Fourth order, four evaluations per step; the standard fixed-step method.",
+        dense_order: 3,
+        tableau: Some(&tableau::RK4),
+        build: build_rk4,
+        switching: None,
+    },
+    MethodInfo {
+        id: "bs32",
+        name: "Bogacki–Shampine 3(2)",
+        order: 3,
+        embedded_order: Some(2),
+        stages: 4,
+        fsal: true,
+        adaptive: true,
+        implicit: false,
+        reference: "P. Bogacki, L. F. Shampine, Appl. Math. Lett. 2 (1989) 321–325, Table 1",
+        summary: "Adaptive, third order, three evaluations per step; for loose tolerances and rough rates.",
+        dense_order: 3,
+        tableau: Some(&tableau::BS32),
+        build: build_bs32,
+        switching: None,
+    },
+    MethodInfo {
+        id: "dp54",
+        name: "Dormand–Prince 5(4)",
+        order: 5,
+        embedded_order: Some(4),
+        stages: 7,
+        fsal: true,
+        adaptive: true,
+        implicit: false,
+        reference: "J. R. Dormand, P. J. Prince, J. Comput. Appl. Math. 6 (1980) 19–26, Table 2; dense output: L. F. Shampine, Math. Comp. 46 (1986) 135–150",
+        summary: "Adaptive, fifth order, six evaluations per step; the default for everyday accuracy.",
+        dense_order: 4,
+        tableau: Some(&tableau::DP54),
+        build: build_dp54,
+        switching: None,
+    },
+    MethodInfo {
+        id: "dp853",
+        name: "Dormand–Prince 8(5,3)",
+        order: 8,
+        embedded_order: Some(5),
+        stages: 13,
+        fsal: true,
+        adaptive: true,
+        implicit: false,
+        reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.10 and the code dop853.f",
+        summary: "Adaptive, eighth order, twelve evaluations per step; for tight tolerances (rtol 1e-7 and below).",
+        dense_order: 7,
+        tableau: Some(&tableau::DP853),
+        build: build_dp853,
+        switching: None,
+    },
+    MethodInfo {
+        id: "auto",
+        name: "Automatic",
+        order: 5,
+        embedded_order: Some(4),
+        stages: 7,
+        fsal: true,
+        adaptive: true,
+        implicit: false,
+        reference: "Dormand–Prince 5(4); see dp54",
+        summary: "Adaptive: starts with Dormand–Prince 5(4) and warns when the problem turns stiff.",
+        dense_order: 4,
+        tableau: Some(&tableau::DP54),
+        build: build_dp54,
+        switching: None,
+    },
+];
+
+/// Every method of the registry.
+pub fn methods() -> &'static [MethodInfo] {
+    &REGISTRY
+}
+
+/// The method with this id.
+pub fn method(id: &str) -> Option<&'static MethodInfo> {
+    REGISTRY.iter().find(|m| m.id == id)
+}

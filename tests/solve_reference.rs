@@ -1,0 +1,92 @@
+//! Reference problems: each check names where its right answer comes from.
+
+use ratebook::problem::Problem;
+use ratebook::problems::nonstiff::*;
+use ratebook::problems::FnProblem;
+use ratebook::solve::{solve, Run, Settings, Status, Tolerance};
+
+fn run(p: &mut dyn Problem, t0: f64, y0: &[f64], s: Settings) -> Run {
+    let r = solve(p, t0, y0, &s).expect("valid settings");
+    assert_eq!(r.status, Status::Finished, "{:?}", r.diagnostics);
+    r
+}
+
+fn last(r: &Run, i: usize) -> f64 {
+    *r.states[i].last().unwrap()
+}
+
+fn settings(method: &str, to: f64, rtol: f64, atol: f64) -> Settings {
+    Settings { method: method.into(), to, tol: Tolerance { rtol, atol }, ..Settings::default() }
+}
+
+#[test]
+fn logistic_growth_matches_analytic_solution() {
+    // Analytic: y = K / (1 + (K/y0 − 1) e^(−rt)).
+    for (m, tol, bound) in [("bs32", 1e-6, 1e-4), ("dp54", 1e-8, 1e-6), ("dp853", 1e-10, 1e-8), ("auto", 1e-6, 1e-4)] {
+        let mut p = FnProblem::new(&["y"], logistic_rhs);
+        let r = run(&mut p, 0.0, &[0.5], settings(m, 10.0, tol, tol));
+        let e = (last(&r, 0) - logistic_exact(10.0)).abs();
+        assert!(e < bound, "{m}: error {e}");
+        // Every output point is on the analytic curve too.
+        for (k, t) in r.t.iter().enumerate() {
+            assert!((r.states[0][k] - logistic_exact(*t)).abs() < bound * 10.0, "{m} at t = {t}");
+        }
+    }
+}
+
+#[test]
+fn cooling_toward_sinusoidal_ambient_matches_analytic() {
+    // Analytic: integrating factor (see cooling_exact).
+    let mut p = FnProblem::new(&["T"], cooling_rhs);
+    let at: Vec<f64> = (0..=20).map(|k| 0.5 * k as f64).collect();
+    let r = run(&mut p, 0.0, &[90.0], Settings { at: Some(at.clone()), ..settings("dp54", 10.0, 1e-8, 1e-8) });
+    assert_eq!(r.t, at);
+    for (k, t) in at.iter().enumerate() {
+        let e = (r.states[0][k] - cooling_exact(*t)).abs();
+        assert!(e < 1e-6, "t = {t}: error {e}");
+    }
+}
+
+#[test]
+fn damped_driven_oscillator_matches_analytic() {
+    // Analytic: steady response plus the damped homogeneous solution.
+    let mut p = FnProblem::new(&["x", "v"], oscillator_rhs);
+    let r = run(&mut p, 0.0, &[1.0, 0.0], settings("dp853", 40.0, 1e-11, 1e-11));
+    let ex = oscillator_exact(40.0);
+    assert!((last(&r, 0) - ex[0]).abs() < 1e-9 && (last(&r, 1) - ex[1]).abs() < 1e-9, "{} {} vs {ex:?}", last(&r, 0), last(&r, 1));
+}
+
+#[test]
+fn arenstorf_orbit_returns_after_its_period() {
+    // Published: the orbit is periodic with period 17.0652165601579625588917206249
+    // (Hairer, Nørsett & Wanner, Solving ODEs I, Sec. II.0; from memory).
+    for (m, tol, bound) in [("dp54", 1e-10, 1e-5), ("dp853", 1e-12, 1e-7)] {
+        let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
+        let r = run(&mut p, 0.0, &ARENSTORF_Y0, settings(m, ARENSTORF_PERIOD, tol, tol));
+        for i in 0..4 {
+            let e = (last(&r, i) - ARENSTORF_Y0[i]).abs();
+            assert!(e < bound, "{m} state {i}: error {e}");
+        }
+    }
+}
+
+#[test]
+fn backward_run_retraces_the_analytic_solution() {
+    // Analytic (logistic): integrate from t = 10 back to 0.
+    let mut p = FnProblem::new(&["y"], logistic_rhs);
+    let r = run(&mut p, 10.0, &[logistic_exact(10.0)], settings("dp54", 0.0, 1e-9, 1e-12));
+    assert_eq!(*r.t.last().unwrap(), 0.0);
+    assert!(r.t.windows(2).all(|w| w[1] < w[0]));
+    assert!((last(&r, 0) - 0.5).abs() < 1e-7, "{}", last(&r, 0));
+}
+
+#[test]
+fn fixed_step_lands_exactly_on_the_end() {
+    // The last step is shortened: 10 / 0.3 is not a whole number of steps.
+    let mut p = FnProblem::new(&["y"], logistic_rhs);
+    let r = run(&mut p, 0.0, &[0.5], Settings { step: Some(0.3), ..settings("rk4", 10.0, 1e-6, 1e-9) });
+    assert_eq!(*r.t.last().unwrap(), 10.0);
+    assert_eq!(r.t.len(), 35); // t0 plus 33 full steps plus the short one
+    assert!((r.t[33] - 9.9).abs() < 1e-12);
+    assert!((last(&r, 0) - logistic_exact(10.0)).abs() < 1e-4);
+}
