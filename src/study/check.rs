@@ -13,7 +13,7 @@
 use serde::Serialize;
 
 use super::convergence::Ladder;
-use super::digits::{error_text, trusted_digits, value_text, with_digits};
+use super::digits::{error_text, plain, trusted_digits, value_text, with_digits};
 use super::pitfalls::{self, Pitfall};
 use crate::problem::Problem;
 use crate::solve::{self, Run, Settings, SolveError, Status};
@@ -112,6 +112,9 @@ pub struct Quantity {
     pub error_shown: String,
     /// Whether the check disagrees with the run by more than its tolerance implies.
     pub disagrees: bool,
+    /// Whether the value is zero to within the run's accuracy (tiny against
+    /// the size the quantity reaches over the run); its digit count means little.
+    pub negligible: bool,
     /// The plain-words verdict on this quantity.
     pub sentence: String,
 }
@@ -241,11 +244,17 @@ pub fn label(k: &Key) -> String {
 
 /// The sentence for one quantity: "event `h < 1` at t = 412.38, good to
 /// about 4 digits (± 0.03)".
-pub fn sentence(k: &Key, independent: &str, value: f64, error: Option<f64>) -> String {
+pub fn sentence(k: &Key, independent: &str, value: f64, error: Option<f64>, negligible: Option<f64>) -> String {
     let what = label(k);
     let lead = if k.kind == Kind::EventTime { format!("{what} at {independent} = ") } else { format!("{what} = ") };
     match error {
         None => format!("{lead}{}: its accuracy could not be checked", with_digits(value, 6)),
+        Some(e) if negligible.is_some() => format!(
+            "{lead}{}: zero to within the run's accuracy (± {}; it reaches {} over the run)",
+            with_digits(value, 1),
+            error_text(e),
+            with_digits(negligible.unwrap_or(0.0), 3)
+        ),
         Some(e) => {
             let d = trusted_digits(value, e);
             let v = value_text(value, e);
@@ -309,18 +318,35 @@ pub fn check(
     let mut checks: Vec<Run> = Vec::new();
     if fixed {
         let h = settings.step.unwrap_or(0.0);
-        how = format!("re-solved with the step halved (h = {}) and quartered (h = {})", with_digits(h / 2.0, 4), with_digits(h / 4.0, 4));
+        how = format!("re-solved with the step halved (h = {}) and quartered (h = {})", plain(h / 2.0), plain(h / 4.0));
         for div in [2.0, 4.0] {
             let r = solve::solve(problem, t0, y0, &Settings { step: Some(h / div), max_steps: settings.max_steps.saturating_mul(4), ..base_settings.clone() })?;
             work += r.stats.rhs_evals;
             checks.push(r);
         }
     } else {
-        let tol = solve::Tolerance { rtol: (settings.tol.rtol / 100.0).max(RTOL_FLOOR), atol: settings.tol.atol / 100.0 };
-        how = format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", with_digits(tol.rtol, 2), with_digits(tol.atol, 2));
+        let tight = |f: f64| solve::Tolerance { rtol: (settings.tol.rtol / f).max(RTOL_FLOOR), atol: settings.tol.atol / f };
+        let tol = tight(100.0);
+        let mut text = format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.rtol), plain(tol.atol));
         let r = solve::solve(problem, t0, y0, &Settings { tol, max_steps: settings.max_steps.saturating_mul(4), ..base_settings.clone() })?;
         work += r.stats.rhs_evals;
-        checks.push(r);
+        // When the tighter run barely moved any quantity (far less than the
+        // tolerance allows), its steps may have been limited by something else
+        // than the tolerance; a second, 10 000 times tighter run settles it.
+        let first = summary(problem, &r);
+        let still = base.iter().any(|(k, v)| {
+            first.iter().find(|(c, _)| c == k).is_some_and(|(_, c)| (v - c).abs() < 0.01 * implied(&settings.tol, k, *v, span))
+        });
+        let far = tight(1e4);
+        if still && far.rtol < tol.rtol {
+            let r2 = solve::solve(problem, t0, y0, &Settings { tol: far, max_steps: settings.max_steps.saturating_mul(16), ..base_settings.clone() })?;
+            work += r2.stats.rhs_evals;
+            text = format!("{text}, and again 10 000 times tighter (rtol {})", plain(far.rtol));
+            checks.push(r2);
+        } else {
+            checks.push(r);
+        }
+        how = text;
     }
     let check_sums: Vec<Vec<(Key, f64)>> = checks.iter().map(|r| summary(problem, r)).collect();
     let find = |sum: &[(Key, f64)], k: &Key| sum.iter().find(|(kk, _)| kk == k).map(|(_, v)| *v);
@@ -346,7 +372,16 @@ pub fn check(
         if disagrees {
             alarm_reasons.push(label(k));
         }
-        let digits = error.map_or(0, |e| trusted_digits(*v, e));
+        let digits = match error {
+            Some(e) if e == 0.0 && *v == 0.0 => super::digits::MAX_DIGITS,
+            Some(e) => trusted_digits(*v, e),
+            None => 0,
+        };
+        let size = if k.kind.is_time() { 0.0 } else { magnitude(problem, &run, &k.name) };
+        let negligible = !k.kind.is_time()
+            && error.is_some_and(|e| e > 0.0)
+            && size > 0.0
+            && (v.abs() <= 1e-6 * size || (!fixed && v.abs() <= 1e3 * settings.tol.atol && size > 1e3 * settings.tol.atol));
         quantities.push(Quantity {
             kind: k.kind,
             name: k.name.clone(),
@@ -358,7 +393,8 @@ pub fn check(
             shown: error.map_or_else(|| with_digits(*v, 6), |e| value_text(*v, e)),
             error_shown: error.map_or_else(|| "unknown".into(), error_text),
             disagrees,
-            sentence: sentence(k, independent, *v, error),
+            negligible,
+            sentence: sentence(k, independent, *v, error, negligible.then_some(size)),
         });
     }
     // Events that one run has and the other has not.
@@ -376,7 +412,7 @@ pub fn check(
         pitfalls.push(pitfalls::status_mismatch(&run.status, &checks[0].status));
     }
     let cross = if opts.cross_method && !matches!(run.status, Status::Failed(_)) {
-        let (c, w) = cross_check(problem, t0, y0, settings, &base, independent)?;
+        let (c, w) = cross_check(problem, t0, y0, settings, &base)?;
         work += w;
         Some(c)
     } else {
@@ -416,10 +452,20 @@ pub fn check(
     })
 }
 
+/// The largest magnitude the state or helper `name` reaches over the run.
+fn magnitude(problem: &dyn Problem, run: &Run, name: &str) -> f64 {
+    let names = problem.state_names().iter().chain(problem.helper_names());
+    names
+        .zip(run.states.iter().chain(&run.helpers))
+        .find(|(n, _)| *n == name)
+        .map_or(0.0, |(_, s)| s.iter().filter(|v| v.is_finite()).fold(0.0, |m, v| m.max(v.abs())))
+}
+
 /// The headline verdict over all quantities.
 fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: &Status) -> String {
     if let Status::Failed(_) = status {
-        return "The run did not reach its end: the results below cover only the part before the failure. Read the first caution below.".into();
+        let why = pitfalls.iter().find(|p| p.level == "alarm").map_or(String::new(), |p| format!(" {}.", p.title));
+        return format!("The run did not reach its end: the results below cover only the part before the failure.{why}");
     }
     if !disagree.is_empty() {
         return format!(
@@ -430,11 +476,11 @@ fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: 
     if let Some(p) = pitfalls.iter().find(|p| p.level == "alarm") {
         return format!("Do not trust these results as they stand: {}.", p.title.to_lowercase());
     }
-    let checked: Vec<&Quantity> = qs.iter().filter(|q| q.error.is_some()).collect();
+    let checked: Vec<&Quantity> = qs.iter().filter(|q| q.error.is_some() && !q.negligible).collect();
     let Some(weak) = checked.iter().min_by_key(|q| q.digits) else {
         return "No result could be checked.".into();
     };
-    let all = if checked.len() == qs.len() { "All" } else { "The checked" };
+    let all = if checked.len() == qs.len() { "All" } else { "The other" };
     if checked.len() == 1 {
         return format!("The result is good to about {} digits.", weak.digits);
     }
@@ -478,7 +524,6 @@ fn cross_check(
     y0: &[f64],
     settings: &Settings,
     base: &[(Key, f64)],
-    independent: &str,
 ) -> Result<(CrossCheck, u64), SolveError> {
     let fixed = settings.step.is_some() || solve::method(&settings.method).is_some_and(|m| !m.adaptive);
     let tol = if fixed { solve::Tolerance::default() } else { settings.tol };

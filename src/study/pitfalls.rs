@@ -8,12 +8,12 @@
 
 use serde::Serialize;
 
-use super::check::{label, list, Key, Kind, Quantity, Stability};
-use super::digits::{error_text, with_digits};
+use super::check::{label, list, Key, Quantity, Stability};
+use super::digits::{error_text, plain, with_digits};
 use super::probe;
 use super::stability::{StabilityFunction, C64};
 use crate::problem::Problem;
-use crate::solve::{self, MethodInfo, Run, Settings, SolveError, Status};
+use crate::solve::{MethodInfo, Run, Settings, SolveError, Status};
 
 /// One pitfall found in a run.
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -204,7 +204,7 @@ pub fn detect(
                 format!(
                     " `{n}` has run down to {} by then: the formula has no value once `{n}` goes below zero, although the real system simply stops there (a tank that is empty stays empty). Write the formula with `max({n}, 0)` in place of `{n}`, or end the run before it with `stop when {n} < {}`.",
                     with_digits(states.get(i).map_or(0.0, |p| p.1), 3),
-                    with_digits(0.01 * y0[i].abs(), 2)
+                    with_digits(0.01 * y0[i].abs(), 1)
                 )
             }
             None => " Check the formula's valid range: a square root or logarithm of a negative value, or a division by zero.".to_string(),
@@ -238,9 +238,9 @@ pub fn detect(
                 format!(
                     "{driver}`{}` grows like 1/({} − {independent})^{}: the fit to the last steps puts the blow-up at {independent} ≈ {}. No method can carry the solution past that time; the model itself says the value is infinite there. Real systems saturate or fail first: check the signs and the terms that feed `{}` back into its own rate.",
                     names[fit.state],
-                    with_digits(fit.t_star, 5),
-                    with_digits(fit.exponent, 2),
-                    with_digits(fit.t_star, 5),
+                    short(fit.t_star, 5),
+                    short(fit.exponent, 2),
+                    short(fit.t_star, 5),
                     names[fit.state]
                 ),
                 Some(fit.t_star),
@@ -281,16 +281,29 @@ pub fn detect(
             let (t, l) = worst.1.unwrap_or((t0, C64::new(0.0, 0.0)));
             let steps = span / h;
             let amp = worst.0.powf(steps.min(1e6));
-            let driver = diag("unstable-step").map(|d| format!("{} ", capital(&d.message))).unwrap_or_default();
-            let extra = format!(
-                "Over the modes seen along the run the fastest decaying one has λ ≈ {}, so h·λ ≈ {} lies outside the region of {} (each step multiplies that mode by {} instead of damping it{}). {}The picture shows each h·λ against the region.",
-                complex_text(l),
-                complex_text(l * h),
-                info.name,
+            let growth = format!(
+                "each step multiplies that mode by {} instead of damping it{}",
                 with_digits(worst.0, 3),
-                if amp.is_finite() && amp > 10.0 { format!(", {} over the run", with_digits(amp, 2)) } else { String::new() },
+                if amp.is_finite() && amp > 10.0 { format!(", {} over the run", with_digits(amp, 2)) } else { String::new() }
+            );
+            let head = match diag("unstable-step") {
+                Some(d) => format!("{} Here {growth}. ", capital(&d.message)),
+                None => format!(
+                    "The step h = {} is too large for {}: the fastest decaying mode along the run has λ ≈ {}, so h·λ ≈ {} lies outside the method's stability region, and {growth}. ",
+                    plain(h),
+                    info.name,
+                    complex_text(l),
+                    complex_text(l * h)
+                ),
+            };
+            let extra = format!(
+                "{}The picture shows each h·λ against the region.",
                 match largest {
-                    Some(x) if x > 0.0 => format!("The largest stable step is h = {}; take h ≤ {} or an implicit method (beuler, trapezoid) or `auto`. ", with_digits(x, 3), with_digits(0.9 * x, 2)),
+                    Some(x) if x > 0.0 => format!(
+                        "Over all the modes seen along the run the largest stable step is h = {}: take h ≤ {}, or an implicit method (beuler, trapezoid), or `auto`. ",
+                        with_digits(x, 3),
+                        short(0.9 * x, 2)
+                    ),
                     _ => "No step size is stable on this mode with this method; take RK4 or an implicit method. ".to_string(),
                 }
             );
@@ -298,7 +311,7 @@ pub fn detect(
                 "unstable-step",
                 if amp > 1e3 || !amp.is_finite() { "alarm" } else { "warning" },
                 "The step is too large for stability",
-                format!("{driver}{extra}"),
+                format!("{head}{extra}"),
                 largest,
                 Some(t),
             );
@@ -371,21 +384,23 @@ pub fn detect(
     let atol = settings.tol.atol;
     let weak: Vec<&Quantity> = quantities
         .iter()
-        .filter(|q| q.error.is_some() && q.digits < opts.shown_digits)
+        .filter(|q| q.error.is_some() && !q.negligible && q.digits + 1 < opts.shown_digits)
         .filter(|q| q.kind.is_time() || fixed || q.value.abs() > 1e3 * atol)
         .collect();
-    if let Some(w) = weak.iter().min_by_key(|q| q.digits) {
+    let failed = matches!(run.status, Status::Failed(_));
+    let unstable = out.iter().any(|p| p.code == "unstable-step");
+    if let Some(w) = weak.iter().min_by_key(|q| q.digits).filter(|_| !failed && !unstable) {
         let fix = if fixed {
             let h = settings.step.unwrap_or(0.0);
             let e = w.error.unwrap_or(0.0);
             let target = 0.5 * w.value.abs() * 10f64.powi(-(opts.shown_digits as i32));
             let hn = h * (target / e).powf(1.0 / info.order.max(1) as f64);
-            format!("Shrink the step to about h = {} (from {}), or read only {} digits.", with_digits(hn, 2), with_digits(h, 3), w.digits)
+            format!("Shrink the step to about h = {} (from {}), or read only {} digits.", with_digits(hn, 2), plain(h), w.digits)
         } else {
             format!(
                 "Tighten rtol to {} (it is {}), or read only {} digits.",
                 with_digits(10f64.powi(-(opts.shown_digits as i32 + 2)), 1),
-                with_digits(settings.tol.rtol, 2),
+                plain(settings.tol.rtol),
                 w.digits
             )
         };
@@ -446,6 +461,11 @@ pub fn detect(
         }
     }
     Found { pitfalls: out, stability, work: 0 }
+}
+
+/// `x` to `n` significant digits with trailing zeros dropped.
+fn short(x: f64, n: u32) -> String {
+    plain(with_digits(x, n).parse().unwrap_or(x))
 }
 
 /// `a + bi` for a message.

@@ -6,7 +6,7 @@ use serde::Serialize;
 
 use super::check::{label, summary, Kind};
 use super::convergence::{fitted_order, Ladder};
-use super::digits::{error_text, with_digits};
+use super::digits::{error_text, plain, with_digits};
 use crate::problem::Problem;
 use crate::solve::{self, Run, Settings, SolveError, Status, Tolerance};
 
@@ -117,11 +117,21 @@ pub fn sweep(
             let r = solve::solve(problem, t0, y0, &Settings { method: id.clone(), step: Some(h), max_steps: base.max_steps.max(16 * ((base.to - t0).abs() / h) as u64), ..base.clone() })?;
             work += r.stats.rhs_evals;
             if let Status::Failed(e) = &r.status {
-                notes.push(format!("{} with h = {} failed: {e}", info.name, with_digits(h, 3)));
+                notes.push(format!("{} with h = {} failed: {e}", info.name, plain(h)));
             }
             runs.push(r);
         }
-        let sums: Vec<_> = runs.iter().map(|r| summary(problem, r)).collect();
+        // Only the steps whose runs finished take part.
+        let good: Vec<usize> = (0..LEVELS).filter(|&i| !matches!(runs[i].status, Status::Failed(_))).collect();
+        if good.len() < 3 || good[0] + good.len() != LEVELS {
+            notes.push(format!(
+                "{}: too few of the steps h, h/2, h/4, h/8 finished for an order to be observed; start from a smaller h.",
+                info.name
+            ));
+            continue;
+        }
+        let hs: Vec<f64> = good.iter().map(|&i| hs[i]).collect();
+        let sums: Vec<_> = good.iter().map(|&i| summary(problem, &runs[i])).collect();
         let mut worst_step: Option<f64> = None;
         for (k, _) in sums[0].iter().filter(|(k, _)| k.kind == Kind::EventTime || (k.kind == Kind::Final && names.contains(&k.name))) {
             let vals: Option<Vec<f64>> = sums.iter().map(|s| s.iter().find(|(x, _)| x == k).map(|p| p.1)).collect();
@@ -132,7 +142,7 @@ pub fn sweep(
                 Some(x) => vals.iter().map(|v| (v - x).abs()).collect(),
                 None => l.errors.clone(),
             };
-            let at_rounding = errors.last().is_some_and(|e| *e <= 1e3 * f64::EPSILON * vals[LEVELS - 1].abs().max(1e-300));
+            let at_rounding = errors.last().is_some_and(|e| *e <= 1e3 * f64::EPSILON * vals[vals.len() - 1].abs().max(1e-300));
             let off = l.off_theory() && !at_rounding;
             let step = target.and_then(|t| l.step_for(t));
             if let Some(s) = step {
@@ -153,7 +163,7 @@ pub fn sweep(
                 sentence.push_str(&format!(" That is far from theory: {}", off_theory_cause(problem, &l)));
             }
             if let (Some(t), Some(s)) = (target, step) {
-                sentence.push_str(&format!(" An error of {} needs h ≈ {}.", with_digits(t, 2), with_digits(s, 2)));
+                sentence.push_str(&format!(" An error of {} needs h ≈ {}.", plain(t), with_digits(s, 2)));
             }
             lines.push(Line {
                 method: info.id.into(),
