@@ -5,6 +5,8 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+mod emit;
+
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
     let s = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true);
     v.serialize(&s).map_err(|e| JsValue::from(js_sys::Error::new(&e.to_string())))
@@ -28,6 +30,7 @@ fn api_error(e: api::ApiError) -> JsValue {
 /// Report panics on the console instead of dying silently.
 #[wasm_bindgen(start)]
 pub fn start() {
+    emit::register();
     std::panic::set_hook(Box::new(|info| {
         web_sys::console::error_1(&JsValue::from_str(&format!("ratebook: internal error: {info}")));
     }));
