@@ -6,17 +6,22 @@
 use serde::ser::SerializeMap;
 use serde::{Deserialize, Serialize, Serializer};
 
+use crate::problem::Problem;
+use crate::sheet::{self, Model, ModelError};
+use crate::solve::{self, Level, Run, Settings, SolveError, Status, Tolerance};
+
 pub mod study;
 
 /// Settings of one run, as the JS API takes them (`solve(sheet, settings)`).
-#[derive(Clone, Debug, Default, Deserialize)]
+/// Absent fields take the solver's defaults ([`Settings::default`]).
+#[derive(Clone, Debug, Default, Deserialize, Serialize, PartialEq)]
 #[serde(rename_all = "camelCase", default)]
 pub struct RunRequest {
     /// End of the run. Required; may be before the sheet's start (backward run).
     pub to: Option<f64>,
-    /// Method id; `auto` when absent.
+    /// Method id (see `methods()`); `auto` when absent.
     pub method: Option<String>,
-    /// Step size for fixed-step methods.
+    /// Step size `h` for fixed-step methods.
     pub step: Option<f64>,
     /// Relative tolerance for adaptive methods (default 1e-6).
     pub rtol: Option<f64>,
@@ -26,13 +31,23 @@ pub struct RunRequest {
     pub at: Option<Vec<f64>>,
     /// Step cap (default 1e6).
     pub max_steps: Option<f64>,
+    /// Most output points kept without `at` (default 200 000).
+    pub max_output: Option<f64>,
+    /// Most event crossings recorded (default 10 000).
+    pub max_events: Option<f64>,
+    /// First step of an adaptive method (default automatic).
+    pub first_step: Option<f64>,
+    /// Largest step of an adaptive method (default the run's length).
+    pub max_step: Option<f64>,
+    /// Parameter values that replace the sheet's, by name (sliders, sweeps).
+    pub params: Option<std::collections::BTreeMap<String, f64>>,
 }
 
 /// Values keyed by name, in model order (a JS object).
 #[derive(Clone, Debug, Default, PartialEq)]
-pub struct Named(pub Vec<(String, Vec<f64>)>);
+pub struct Named<V>(pub Vec<(String, V)>);
 
-impl Serialize for Named {
+impl<V: Serialize> Serialize for Named<V> {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         let mut m = s.serialize_map(Some(self.0.len()))?;
         for (k, v) in &self.0 {
@@ -42,28 +57,54 @@ impl Serialize for Named {
     }
 }
 
-/// Work counters of a run.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize)]
+/// One event crossing.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct EventReport {
+    /// The condition text as written in the sheet.
+    pub name: String,
+    /// When it happened.
+    pub t: f64,
+    /// Every state and helper there, by name.
+    pub values: Named<f64>,
+}
+
+/// The peak and trough of one state or helper.
+#[derive(Clone, Debug, PartialEq, Serialize)]
 #[serde(rename_all = "camelCase")]
-pub struct ReportStats {
-    /// Right-hand-side evaluations.
-    pub rhs_evals: u64,
-    /// Accepted steps.
-    pub steps: u64,
-    /// Rejected steps.
-    pub rejected: u64,
-    /// Jacobian evaluations.
-    pub jacobians: u64,
-    /// LU factorizations.
-    pub factorizations: u64,
+pub struct ExtremumReport {
+    /// State or helper name.
+    pub name: String,
+    /// Largest value.
+    pub max: f64,
+    /// When it was reached.
+    pub t_max: f64,
+    /// Smallest value.
+    pub min: f64,
+    /// When it was reached.
+    pub t_min: f64,
+}
+
+/// A plain-language note about the run.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct DiagnosticReport {
+    /// `info`, `warning` or `error`.
+    pub level: Level,
+    /// Stable kebab-case id.
+    pub code: &'static str,
+    /// What happened and what to do.
+    pub message: String,
+    /// Where in the run, when it applies to a time.
+    pub t: Option<f64>,
 }
 
 /// One run's result as the JS API returns it.
-#[derive(Clone, Debug, Default, Serialize)]
+#[derive(Clone, Debug, Serialize)]
 #[serde(rename_all = "camelCase")]
 pub struct RunReport {
     /// The independent variable's name (`t` unless the sheet declares another).
     pub independent: String,
+    /// The method that ran.
+    pub method: String,
     /// State names, in order.
     pub states: Vec<String>,
     /// Helper names, in order.
@@ -71,99 +112,132 @@ pub struct RunReport {
     /// Output times.
     pub t: Vec<f64>,
     /// Every state and helper at `t`, by name.
-    pub values: Named,
-    /// Work counters.
-    pub stats: ReportStats,
+    pub values: Named<Vec<f64>>,
+    /// Event crossings in time order.
+    pub events: Vec<EventReport>,
+    /// Peak and trough of every state and helper.
+    pub extrema: Vec<ExtremumReport>,
+    /// Notes, warnings and errors, in the order they arose.
+    pub diagnostics: Vec<DiagnosticReport>,
     /// `finished`, `stopped` or `failed`.
     pub status: &'static str,
-}
-
-/// A sheet the model code cannot read: where, and what is wrong.
-#[derive(Clone, Debug, PartialEq)]
-pub struct SheetFault {
-    /// 1-based line.
-    pub line: usize,
-    /// 1-based column.
-    pub column: usize,
-    /// Plain-English message naming what is wrong and where.
-    pub message: String,
+    /// Why the run failed, when it did (also the last diagnostic).
+    pub error: Option<String>,
+    /// Work counters.
+    pub stats: solve::Stats,
 }
 
 /// Why a request could not be run.
 #[derive(Clone, Debug, PartialEq)]
 pub enum ApiError {
-    /// The sheet has an error at a line and column.
-    Sheet(SheetFault),
-    /// The settings are invalid.
-    Settings(String),
+    /// The sheet cannot be read: the error has its line and column.
+    Sheet(ModelError),
+    /// A setting is invalid.
+    Settings(SolveError),
+}
+
+impl std::fmt::Display for ApiError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            ApiError::Sheet(e) => write!(f, "{}", e.message()),
+            ApiError::Settings(e) => write!(f, "{e}"),
+        }
+    }
+}
+
+impl std::error::Error for ApiError {}
+
+fn count(v: Option<f64>, default: u64) -> u64 {
+    match v {
+        Some(x) if x.is_finite() && x >= 0.0 => x.min(u64::MAX as f64) as u64,
+        Some(_) => 0, // rejected by the solver's own range checks
+        None => default,
+    }
+}
+
+/// Solver settings from a request; the solver checks their ranges.
+pub fn settings(req: &RunRequest) -> Settings {
+    let d = Settings::default();
+    Settings {
+        method: req.method.clone().unwrap_or_else(|| "auto".to_string()),
+        to: req.to.unwrap_or(f64::NAN),
+        step: req.step,
+        tol: Tolerance { rtol: req.rtol.unwrap_or(d.tol.rtol), atol: req.atol.unwrap_or(d.tol.atol) },
+        at: req.at.clone(),
+        max_steps: count(req.max_steps, d.max_steps),
+        max_output: count(req.max_output, d.max_output as u64) as usize,
+        max_events: count(req.max_events, d.max_events as u64) as usize,
+        first_step: req.first_step,
+        max_step: req.max_step,
+        ..d
+    }
+}
+
+/// Compile `sheet` and apply the request's parameter overrides.
+pub fn model(sheet_text: &str, req: &RunRequest) -> Result<Model, ApiError> {
+    let mut m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
+    if let Some(params) = &req.params {
+        for (name, &value) in params {
+            if !m.set_param(name, value) {
+                return Err(ApiError::Settings(SolveError::InvalidSettings {
+                    field: "params",
+                    reason: format!("the sheet has no parameter named `{name}`"),
+                }));
+            }
+        }
+    }
+    Ok(m)
 }
 
 /// Solve `sheet` with `req`.
-pub fn solve(sheet: &str, req: &RunRequest) -> Result<RunReport, ApiError> {
-    scalar::solve(sheet, req)
+pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> {
+    let mut m = model(sheet_text, req)?;
+    run_model(&mut m, req)
 }
 
-/// A first, single-equation path: `y' = expr` with `y(t0) = value`, by RK4.
-mod scalar {
-    use super::*;
+/// Solve an already compiled model with `req`.
+pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
+    let s = settings(req);
+    let (t0, y0) = (m.t0(), m.initial_state().to_vec());
+    let run = solve::solve(m, t0, &y0, &s).map_err(ApiError::Settings)?;
+    Ok(report(m, &s.method, run))
+}
 
-    pub fn solve(sheet: &str, req: &RunRequest) -> Result<RunReport, ApiError> {
-        let mut rate = None;
-        let mut init = None;
-        for (i, raw) in sheet.lines().enumerate() {
-            let line = raw.split('#').next().unwrap_or("").trim();
-            if line.is_empty() {
-                continue;
-            }
-            let fault = |column: usize, message: &str| {
-                ApiError::Sheet(SheetFault { line: i + 1, column, message: message.to_string() })
-            };
-            let Some((lhs, rhs)) = line.split_once('=') else {
-                return Err(fault(1, "expected `y' = expression` or `y(t0) = value`"));
-            };
-            let col = raw.find(rhs.trim()).unwrap_or(0) + 1;
-            let expr: meval::Expr =
-                rhs.trim().parse().map_err(|e| fault(col, &format!("cannot read this expression: {e}")))?;
-            let lhs = lhs.trim();
-            if let Some(name) = lhs.strip_suffix('\'') {
-                let f = expr
-                    .bind2("t", name)
-                    .map_err(|e| fault(col, &format!("{e}")))?;
-                rate = Some((name.to_string(), f));
-            } else if let Some((name, t0)) = lhs.strip_suffix(')').and_then(|s| s.split_once('(')) {
-                let t0: f64 = t0.trim().parse().map_err(|_| fault(1, "the start time must be a number"))?;
-                let v = expr.eval().map_err(|e| fault(col, &format!("{e}")))?;
-                init = Some((name.trim().to_string(), t0, v));
-            } else {
-                return Err(fault(1, "expected `y' = expression` or `y(t0) = value`"));
-            }
-        }
-        let (name, f) = rate.ok_or(ApiError::Sheet(SheetFault { line: 1, column: 1, message: "the sheet has no rate equation".into() }))?;
-        let (_, t0, y0) = init.ok_or(ApiError::Sheet(SheetFault { line: 1, column: 1, message: format!("the state {name} has no initial value") }))?;
-        let to = req.to.ok_or(ApiError::Settings("`to` is required".into()))?;
-        let n = 1000usize;
-        let h = (to - t0) / n as f64;
-        let (mut t, mut y) = (t0, y0);
-        let mut ts = vec![t];
-        let mut ys = vec![y];
-        for _ in 0..n {
-            let k1 = f(t, y);
-            let k2 = f(t + h / 2.0, y + h / 2.0 * k1);
-            let k3 = f(t + h / 2.0, y + h / 2.0 * k2);
-            let k4 = f(t + h, y + h * k3);
-            y += h / 6.0 * (k1 + 2.0 * k2 + 2.0 * k3 + k4);
-            t += h;
-            ts.push(t);
-            ys.push(y);
-        }
-        Ok(RunReport {
-            independent: "t".into(),
-            states: vec![name.clone()],
-            helpers: vec![],
-            t: ts,
-            values: Named(vec![(name, ys)]),
-            stats: ReportStats { rhs_evals: 4 * n as u64, steps: n as u64, ..Default::default() },
-            status: "finished",
-        })
+/// The JS shape of a run of `m`.
+pub fn report(m: &Model, method: &str, run: Run) -> RunReport {
+    let states = m.state_names().to_vec();
+    let helpers = m.helper_names().to_vec();
+    let names: Vec<String> = states.iter().chain(&helpers).cloned().collect();
+    let named = |v: Vec<f64>, w: Vec<f64>| Named(names.iter().cloned().zip(v.into_iter().chain(w)).collect());
+    let values = Named(names.iter().cloned().zip(run.states.into_iter().chain(run.helpers)).collect());
+    let events = run.events.into_iter().map(|e| EventReport { name: e.name, t: e.t, values: named(e.states, e.helpers) }).collect();
+    let extrema = run
+        .extrema
+        .into_iter()
+        .map(|x| ExtremumReport { name: x.name, max: x.max, t_max: x.t_max, min: x.min, t_min: x.t_min })
+        .collect();
+    let diagnostics = run
+        .diagnostics
+        .into_iter()
+        .map(|d| DiagnosticReport { level: d.level, code: d.code, message: d.message, t: d.t })
+        .collect();
+    let (status, error) = match &run.status {
+        Status::Finished => ("finished", None),
+        Status::Stopped { .. } => ("stopped", None),
+        Status::Failed(e) => ("failed", Some(e.to_string())),
+    };
+    RunReport {
+        independent: m.independent().to_string(),
+        method: method.to_string(),
+        states,
+        helpers,
+        t: run.t,
+        values,
+        events,
+        extrema,
+        diagnostics,
+        status,
+        error,
+        stats: run.stats,
     }
 }

@@ -7,10 +7,10 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{ApiError, RunRequest, SheetFault};
+use super::{ApiError, RunRequest};
 use crate::problem::Problem;
-use crate::sheet::{self, Model};
-use crate::solve::{self, Settings, SolveError, Tolerance};
+use crate::sheet::Model;
+use crate::solve::{self, Settings, SolveError};
 use crate::study::check::{self, Options, Report};
 use crate::study::pitfalls::function_for;
 use crate::study::stability::C64;
@@ -60,35 +60,13 @@ pub struct RegionReport {
     pub imaginary_limit: Option<f64>,
 }
 
-fn sheet_error(e: sheet::ModelError) -> ApiError {
-    ApiError::Sheet(SheetFault { line: e.line, column: e.column, message: e.message() })
-}
-
-fn solve_error(e: SolveError) -> ApiError {
-    ApiError::Settings(e.to_string())
-}
-
-/// The solver settings of a request for `model`.
-fn settings(model: &Model, req: &RunRequest) -> Result<Settings, ApiError> {
-    let to = req.to.ok_or(ApiError::Settings("`to` is required".into()))?;
-    let d = Settings::default();
-    let method = req.method.clone().unwrap_or_else(|| "auto".into());
-    let _ = model;
-    Ok(Settings {
-        method,
-        to,
-        step: req.step,
-        tol: Tolerance { rtol: req.rtol.unwrap_or(d.tol.rtol), atol: req.atol.unwrap_or(d.tol.atol) },
-        at: None,
-        max_steps: req.max_steps.filter(|m| m.is_finite() && *m >= 1.0).map_or(d.max_steps, |m| m as u64),
-        ..d
-    })
-}
-
 fn model_and_settings(sheet: &str, req: &StudyRequest) -> Result<(Model, Settings), ApiError> {
-    let model = sheet::compile(sheet).map_err(sheet_error)?;
-    let s = settings(&model, &req.run)?;
-    Ok((model, s))
+    let model = super::model(sheet, &req.run)?;
+    Ok((model, Settings { at: None, ..super::settings(&req.run) }))
+}
+
+fn invalid(field: &'static str, reason: String) -> ApiError {
+    ApiError::Settings(SolveError::InvalidSettings { field, reason })
 }
 
 /// Check how far to trust the run of `sheet` with `req`.
@@ -99,7 +77,7 @@ pub fn check_accuracy(sheet: &str, req: &StudyRequest) -> Result<AccuracyReport,
         shown_digits: req.shown_digits.unwrap_or(6).clamp(1, 15),
         cross_method: req.cross_method.unwrap_or(true),
     };
-    let report = check::check(&mut model as &mut dyn Problem, t0, &y0, &s, &ind, &opts).map_err(solve_error)?;
+    let report = check::check(&mut model as &mut dyn Problem, t0, &y0, &s, &ind, &opts).map_err(ApiError::Settings)?;
     Ok(AccuracyReport { version: env!("CARGO_PKG_VERSION"), report })
 }
 
@@ -108,13 +86,13 @@ pub fn convergence_study(sheet: &str, req: &StudyRequest) -> Result<Sweep, ApiEr
     let (mut model, s) = model_and_settings(sheet, req)?;
     let (t0, y0, ind) = (model.t0(), model.initial_state().to_vec(), model.independent().to_string());
     let methods = req.methods.clone().unwrap_or_else(|| vec![s.method.clone()]);
-    sweep::sweep(&mut model, t0, &y0, &s, &methods, req.target, &ind).map_err(solve_error)
+    sweep::sweep(&mut model, t0, &y0, &s, &methods, req.target, &ind).map_err(ApiError::Settings)
 }
 
 /// The stability region of `method`, framed to show the points `hl` (`h·λ` values).
 pub fn stability_region(method: &str, hl: &[(f64, f64)]) -> Result<RegionReport, ApiError> {
-    let info = solve::method(method).ok_or_else(|| ApiError::Settings(format!("there is no method `{method}`")))?;
-    let f = function_for(info).ok_or_else(|| ApiError::Settings(format!("no stability function is known for `{method}`")))?;
+    let info = solve::method(method).ok_or_else(|| invalid("method", format!("there is no method `{method}`")))?;
+    let f = function_for(info).ok_or_else(|| invalid("method", format!("no stability function is known for `{method}`")))?;
     let pts: Vec<C64> = hl.iter().map(|&(re, im)| C64::new(re, im)).collect();
     let frame = f.frame(&pts);
     Ok(RegionReport {
@@ -129,13 +107,13 @@ pub fn stability_region(method: &str, hl: &[(f64, f64)]) -> Result<RegionReport,
 /// An SVG drawing of `method`'s stability region with the points `hl`.
 pub fn stability_svg(method: &str, title: &str, hl: &[(f64, f64)], width: u32, height: u32) -> Result<String, ApiError> {
     use plotters::prelude::*;
-    let info = solve::method(method).ok_or_else(|| ApiError::Settings(format!("there is no method `{method}`")))?;
-    let f = function_for(info).ok_or_else(|| ApiError::Settings(format!("no stability function is known for `{method}`")))?;
+    let info = solve::method(method).ok_or_else(|| invalid("method", format!("there is no method `{method}`")))?;
+    let f = function_for(info).ok_or_else(|| invalid("method", format!("no stability function is known for `{method}`")))?;
     let pts: Vec<C64> = hl.iter().map(|&(re, im)| C64::new(re, im)).collect();
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))).into_drawing_area();
-        crate::draw::study::stability_region(&root, title, &f, &pts).map_err(|e| ApiError::Settings(e.0))?;
+        crate::draw::study::stability_region(&root, title, &f, &pts).map_err(|e| invalid("drawing", e.0))?;
     }
     Ok(svg)
 }
@@ -154,7 +132,7 @@ pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String,
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))).into_drawing_area();
-        convergence(&root, &lines).map_err(|e| ApiError::Settings(e.0))?;
+        convergence(&root, &lines).map_err(|e| invalid("drawing", e.0))?;
     }
     Ok(svg)
 }

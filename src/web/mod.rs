@@ -22,8 +22,8 @@ fn error_with(message: &str, props: &[(&str, f64)]) -> JsValue {
 
 fn api_error(e: api::ApiError) -> JsValue {
     match e {
-        api::ApiError::Sheet(f) => error_with(&f.message, &[("line", f.line as f64), ("column", f.column as f64)]),
-        api::ApiError::Settings(m) => error_with(&m, &[]),
+        api::ApiError::Sheet(f) => error_with(&f.message(), &[("line", f.line as f64), ("column", f.column as f64)]),
+        api::ApiError::Settings(s) => error_with(&s.to_string(), &[]),
     }
 }
 
