@@ -568,7 +568,8 @@ impl<'a> Driver<'a> {
                     self.stiff_count += 1;
                     if self.stiff_count >= STIFF_COUNT {
                         stiff = true;
-                        if !self.stiff_warned {
+                        // Under a switching policy (`auto`) the policy acts on the verdict instead.
+                        if !self.stiff_warned && self.switching.is_none() {
                             self.stiff_warned = true;
                             self.diagnostics.push(Diagnostic {
                                 level: Level::Warning,

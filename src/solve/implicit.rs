@@ -104,6 +104,21 @@ pub static BACKWARD_EULER: ThetaMethod =
 pub static TRAPEZOID: ThetaMethod =
     ThetaMethod { id: "trapezoid", theta: 0.5, order: 2, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (trapezoidal rule)" };
 
+/// Builds a [`BACKWARD_EULER`] stepper for `dim` states (the registry's `build`).
+pub fn build_beuler(dim: usize) -> Box<dyn Stepper> {
+    Box::new(ThetaStepper::new(&BACKWARD_EULER, dim))
+}
+
+/// Builds a [`TRAPEZOID`] stepper for `dim` states (the registry's `build`).
+pub fn build_trapezoid(dim: usize) -> Box<dyn Stepper> {
+    Box::new(ThetaStepper::new(&TRAPEZOID, dim))
+}
+
+/// Builds a [`RADAU5`] stepper for `dim` states (the registry's `build`).
+pub fn build_radau5(dim: usize) -> Box<dyn Stepper> {
+    Box::new(Radau::new(dim))
+}
+
 /// The stepper of a [`ThetaMethod`]. The Jacobian is taken at the start of
 /// each step; the iteration matrix `I - θhJ` is factored once per step.
 #[derive(Debug)]
@@ -163,8 +178,7 @@ impl Stepper for ThetaStepper {
         let mut conv = Contraction::default();
         let mut converged = false;
         for k in 0..NEWTON_MAX_ITER {
-            problem.rhs(t + h, y_new, &mut self.f1);
-            stats.rhs_evals += 1;
+            rates(problem, t + h, y_new, &mut self.f1, stats)?;
             for i in 0..n {
                 self.delta[i] = -(y_new[i] - y[i] - h * ((1.0 - th) * self.f0[i] + th * self.f1[i]));
             }
@@ -405,8 +419,9 @@ impl Radau {
     }
 
     /// The simplified Newton iteration for the stage increments `z`, started
-    /// from the current `z`. Returns whether it converged.
-    fn newton(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], h: f64, tol: &Tolerance, stats: &mut Stats) -> bool {
+    /// from the current `z`. Returns whether it converged; non-finite rates
+    /// at a stage are a fault.
+    fn newton(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], h: f64, tol: &Tolerance, stats: &mut Stats) -> Result<bool, StepFault> {
         let n = y.len();
         let kappa = newton_kappa(tol);
         let mut conv = Contraction::default();
@@ -415,11 +430,7 @@ impl Radau {
                 for q in 0..n {
                     self.arg[q] = y[q] + self.z[i * n + q];
                 }
-                problem.rhs(t + self.c[i] * h, &self.arg, &mut self.fz[i * n..(i + 1) * n]);
-                stats.rhs_evals += 1;
-            }
-            if !self.fz.iter().all(|v| v.is_finite()) {
-                return false;
+                rates(problem, t + self.c[i] * h, &self.arg, &mut self.fz[i * n..(i + 1) * n], stats)?;
             }
             for i in 0..3 {
                 for q in 0..n {
@@ -428,7 +439,7 @@ impl Radau {
                 }
             }
             if self.newton.solve(&mut self.dz).is_err() {
-                return false;
+                return Ok(false);
             }
             let mut sum = 0.0;
             for (idx, (zi, dzi)) in self.z.iter_mut().zip(&self.dz).enumerate() {
@@ -440,13 +451,13 @@ impl Radau {
             match conv.update(norm, k, kappa) {
                 NewtonState::Converged => {
                     self.last_rate = conv.rate;
-                    return true;
+                    return Ok(true);
                 }
-                NewtonState::Failed => return false,
+                NewtonState::Failed => return Ok(false),
                 NewtonState::Going => {}
             }
         }
-        false
+        Ok(false)
     }
 
     /// The Newton start: the previous collocation polynomial extrapolated, or zero.
@@ -509,7 +520,7 @@ impl Stepper for Radau {
                 self.factor(n, h, stats)?;
             }
             self.initial_guess(h, n);
-            converged = self.newton(problem, t, y, h, tol, stats);
+            converged = self.newton(problem, t, y, h, tol, stats)?;
             if !converged {
                 if self.jac_current {
                     // Factor again at the driver's smaller h next time.

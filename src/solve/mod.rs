@@ -37,6 +37,7 @@
 //!   `method-switch` and continues from the current point. The `auto` entry
 //!   runs Dormand–Prince 5(4) with no policy until one is plugged in.
 
+pub mod auto;
 pub mod control;
 mod driver;
 pub mod explicit;

@@ -103,6 +103,11 @@ pub static RODAS4: RosenbrockTableau = RosenbrockTableau {
     reference: "Hairer & Wanner, Solving ODEs II, Sec. VI.4 (RODAS); coefficients of rodas.f RODCOE METH=1",
 };
 
+/// Builds a [`RODAS4`] stepper for `dim` states (the registry's `build`).
+pub fn build_rodas4(dim: usize) -> Box<dyn Stepper> {
+    Box::new(Rosenbrock::new(&RODAS4, dim))
+}
+
 /// A Rosenbrock stepper running one [`RosenbrockTableau`].
 ///
 /// The Jacobian, `∂f/∂t` and `f(t, y)` at the step's start are evaluated once

@@ -5,6 +5,7 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+mod bench_stiff;
 mod emit;
 
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
