@@ -90,3 +90,32 @@ fn fixed_step_lands_exactly_on_the_end() {
     assert!((r.t[33] - 9.9).abs() < 1e-12);
     assert!((last(&r, 0) - logistic_exact(10.0)).abs() < 1e-4);
 }
+
+#[test]
+fn lorenz_to_t5_matches_the_mpmath_reference() {
+    // Reference: tests/reference/nonstiff.py (mpmath odefun, 40 digits), output in nonstiff.json.
+    let want: Vec<f64> = reference(&["lorenz", "at", "5"]).unwrap().as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
+    for (m, tol, bound) in [("dp54", 1e-10, 1e-5), ("dp853", 1e-13, 1e-8)] {
+        let mut p = FnProblem::new(&["x", "y", "z"], lorenz_rhs);
+        let r = run(&mut p, 0.0, &[1.0, 1.0, 1.0], settings(m, 5.0, tol, tol));
+        for i in 0..3 {
+            assert!((last(&r, i) - want[i]).abs() < bound, "{m} state {i}: {} vs {}", last(&r, i), want[i]);
+        }
+    }
+}
+
+#[test]
+fn every_shared_problem_with_a_reference_is_met_by_dp853() {
+    // Each TestProblem names its source (analytic, published, or the committed mpmath script).
+    for tp in ratebook::problems::nonstiff::all() {
+        let Some(want) = tp.reference.clone() else { continue };
+        assert!(!tp.source.is_empty());
+        let mut p = (tp.make)();
+        let r = run(&mut *p, tp.t0, &tp.y0, settings("dp853", tp.t_end, 1e-13, 1e-13));
+        for (i, w) in want.iter().enumerate() {
+            // Lorenz to t = 20 amplifies errors by about e^(0.9·20) (chaos), hence its looser bound.
+            let bound = if tp.name == "lorenz" { 1e-4 } else { 1e-8 * (1.0 + w.abs()) };
+            assert!((last(&r, i) - w).abs() < bound, "{}: state {i} {} vs {w}", tp.name, last(&r, i));
+        }
+    }
+}

@@ -1,0 +1,55 @@
+//! Work-count snapshots: exact counts of rate evaluations, steps and rejected
+//! steps for a few problems, to catch a change of the controller, the initial
+//! step or the FSAL reuse that no accuracy test would see. When a deliberate
+//! change moves them, check the accuracy tests and the bench, then update.
+
+use ratebook::problems::nonstiff::*;
+use ratebook::problems::FnProblem;
+use ratebook::solve::{solve, Settings, Stats, Tolerance};
+
+fn stats(rhs_evals: u64, steps: u64, rejected: u64) -> Stats {
+    Stats { rhs_evals, steps, rejected, jacobians: 0, factorizations: 0 }
+}
+
+fn counted(method: &str, tol: f64, to: f64, problem: &mut dyn ratebook::problem::Problem, y0: &[f64]) -> Stats {
+    let s = Settings { method: method.into(), to, tol: Tolerance { rtol: tol, atol: tol }, extrema: false, ..Settings::default() };
+    solve(problem, 0.0, y0, &s).unwrap().stats
+}
+
+#[test]
+fn arenstorf_work_counts() {
+    let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
+    assert_eq!(counted("dp54", 1e-6, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(993, 140, 25));
+    assert_eq!(counted("dp853", 1e-9, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(2295, 144, 47));
+    assert_eq!(counted("bs32", 1e-4, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(603, 178, 22));
+}
+
+#[test]
+fn lorenz_work_counts() {
+    let mut p = FnProblem::new(&["x", "y", "z"], lorenz_rhs);
+    assert_eq!(counted("dp54", 1e-6, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(4797, 766, 33));
+    assert_eq!(counted("dp853", 1e-9, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(7863, 612, 43));
+}
+
+#[test]
+fn tank_event_run_work_counts() {
+    // Default settings, stop event, helper and extrema: dense output costs no evaluations for dp54.
+    let mut p = tank_problem();
+    let r = solve(&mut p, 0.0, &[4.0], &Settings { to: 100.0, ..Settings::default() }).unwrap();
+    assert_eq!(r.stats, stats(75, 9, 3));
+}
+
+#[test]
+fn fixed_step_counts_are_stages_times_steps() {
+    // RK4: 4 evaluations per step, plus the stability check four times per run
+    // (a finite-difference Jacobian: 2 evaluations for one state).
+    let mut p = FnProblem::new(&["y"], logistic_rhs);
+    let s = Settings { method: "rk4".into(), to: 1.0, step: Some(0.1), extrema: false, ..Settings::default() };
+    let r = solve(&mut p, 0.0, &[0.5], &s).unwrap();
+    assert_eq!(r.stats, Stats { rhs_evals: 40 + 4 * 2, steps: 10, rejected: 0, jacobians: 4, factorizations: 0 });
+    // With dense output (extrema on) the Hermite end slope of each step is the
+    // next step's first stage: one more evaluation, for the last step only.
+    let s = Settings { extrema: true, ..s };
+    let r = solve(&mut p, 0.0, &[0.5], &s).unwrap();
+    assert_eq!(r.stats.rhs_evals, 40 + 1 + 4 * 2);
+}
