@@ -81,12 +81,25 @@ pub fn check_accuracy(sheet: &str, req: &StudyRequest) -> Result<AccuracyReport,
     Ok(AccuracyReport { version: env!("CARGO_PKG_VERSION"), report })
 }
 
+/// A convergence study as the JS API returns it, with its log-log plot.
+#[derive(Clone, Debug, Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct ConvergenceReport {
+    /// The study.
+    #[serde(flatten)]
+    pub sweep: Sweep,
+    /// The log-log plot of error against h, as SVG (640 × 400).
+    pub plot: String,
+}
+
 /// The fixed-step convergence study of `sheet` from `req.step` down by halves.
-pub fn convergence_study(sheet: &str, req: &StudyRequest) -> Result<Sweep, ApiError> {
+pub fn convergence_study(sheet: &str, req: &StudyRequest) -> Result<ConvergenceReport, ApiError> {
     let (mut model, s) = model_and_settings(sheet, req)?;
     let (t0, y0, ind) = (model.t0(), model.initial_state().to_vec(), model.independent().to_string());
     let methods = req.methods.clone().unwrap_or_else(|| vec![s.method.clone()]);
-    sweep::sweep(&mut model, t0, &y0, &s, &methods, req.target, &ind).map_err(ApiError::Settings)
+    let sweep = sweep::sweep(&mut model, t0, &y0, &s, &methods, req.target, &ind).map_err(ApiError::Settings)?;
+    let plot = convergence_svg(&sweep, 640, 400)?;
+    Ok(ConvergenceReport { sweep, plot })
 }
 
 /// The stability region of `method`, framed to show the points `hl` (`h·λ` values).

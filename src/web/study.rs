@@ -1,5 +1,5 @@
 //! wasm exports of the accuracy study: `checkAccuracy`, `convergenceStudy`,
-//! `stabilityRegion` and the SVG drawings of the study.
+//! `stabilityRegion` and `stabilitySvg`.
 
 use wasm_bindgen::prelude::*;
 
@@ -24,7 +24,7 @@ pub fn check_accuracy(sheet: &str, settings: JsValue) -> Result<JsValue, JsValue
 
 /// The fixed-step convergence study of `sheet` at `settings.step`, `/2`, `/4`,
 /// `/8` for `settings.methods` (default the run's method), with the step that
-/// reaches `settings.target`.
+/// reaches `settings.target` and the log-log plot as SVG (`plot`).
 #[wasm_bindgen(js_name = convergenceStudy)]
 pub fn convergence_study(sheet: &str, settings: JsValue) -> Result<JsValue, JsValue> {
     let req = request(settings)?;
@@ -44,13 +44,4 @@ pub fn stability_region(method: &str, points: &[f64]) -> Result<JsValue, JsValue
 pub fn stability_svg(method: &str, title: &str, points: &[f64], width: u32, height: u32) -> Result<String, JsValue> {
     let pts: Vec<(f64, f64)> = points.chunks_exact(2).map(|c| (c[0], c[1])).collect();
     study::stability_svg(method, title, &pts, width, height).map_err(api_error)
-}
-
-/// An SVG log-log plot of a convergence study (as `convergenceStudy` returned it,
-/// recomputed from `sheet` and `settings`).
-#[wasm_bindgen(js_name = convergenceSvg)]
-pub fn convergence_svg(sheet: &str, settings: JsValue, width: u32, height: u32) -> Result<String, JsValue> {
-    let req = request(settings)?;
-    let s = study::convergence_study(sheet, &req).map_err(api_error)?;
-    study::convergence_svg(&s, width, height).map_err(api_error)
 }
