@@ -26,7 +26,7 @@ let METHODS = [];
 const PLOT_POINTS = 600;
 const EDIT_DELAY_MS = 300;
 
-const solverModule = new WebAssembly.Module(wasmBytes());
+const solverModule = new WebAssembly.Module(await wasmBytes());
 initSync({ module: solverModule });
 initGuard(solverModule);
 setModule(solverModule);
@@ -383,6 +383,7 @@ async function startPage() {
   }
   if (!loaded) await loadExample(EXAMPLES[0].id, { keepOld: false });
   if (app.embed) readOnly(true);
+  document.body.dataset.readyAt = String(performance.now());
   document.body.dataset.ready = "1";
 }
 
