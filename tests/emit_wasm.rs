@@ -201,3 +201,16 @@ fn too_many_live_values_are_refused_not_emitted_broken() {
     let p = Program::new(n, vec![], vec![], insts, vec![(first + n - 2) as u32]).expect("well-formed");
     assert_eq!(module(&[("rhs", &p)]), Err(EmitError::TooLarge));
 }
+
+#[test]
+fn the_rk4_stepper_module_is_valid_for_every_operation() {
+    use ratebook::emit::lower::rk4_module;
+    for op in ALL_OPS.into_iter().chain([Op::Step]) {
+        let bytes = rk4_module(&one_op(op, 3, 1)).expect("emits");
+        validate(&bytes);
+    }
+    let chain = long_chain(1000);
+    assert_eq!(rk4_module(&chain), Err(EmitError::NotRates), "two outputs for one state");
+    let one_rate = Program::new(1, vec![], vec![], chain.insts().to_vec(), vec![chain.outputs()[0]]).expect("well-formed");
+    validate(&rk4_module(&one_rate).expect("emits"));
+}

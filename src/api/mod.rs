@@ -197,7 +197,11 @@ pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> 
 pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
     let s = settings(req);
     let (t0, y0) = (m.t0(), m.initial_state().to_vec());
-    let run = solve::solve(m, t0, &y0, &s).map_err(ApiError::Settings)?;
+    // In the page the formulas run as an emitted wasm module; elsewhere, or
+    // when the page may not compile one, on the interpreter.
+    let mut p = crate::emit::EmittedModel::new(&mut *m);
+    let run = solve::solve(&mut p, t0, &y0, &s).map_err(ApiError::Settings)?;
+    drop(p);
     Ok(report(m, &s.method, run))
 }
 

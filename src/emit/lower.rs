@@ -75,6 +75,36 @@ pub enum EmitError {
     /// The program is larger than a wasm function may be (too many live
     /// values or too large a memory offset).
     TooLarge,
+    /// A stepper was asked for a program that does not give one rate per state.
+    NotRates,
+}
+
+/// Imports of a module: the function index of each entry of [`MATHS`] that
+/// some program uses (`u32::MAX` for the others).
+struct Imports(Vec<u32>);
+
+impl Imports {
+    /// Import memory and every maths function that the slots `needed` of
+    /// `programs` use.
+    fn declare(m: &mut Module, programs: &[(&Program, &[bool])]) -> Imports {
+        m.import_memory(IMPORT_MODULE, "memory");
+        let mut used = vec![false; MATHS.len()];
+        for (p, needed) in programs {
+            let first = p.first_inst_slot();
+            for (k, i) in p.insts().iter().enumerate() {
+                if let (true, Some(m)) = (needed[first + k], maths_index(i.op)) {
+                    used[m] = true;
+                }
+            }
+        }
+        let mut funcs = vec![u32::MAX; MATHS.len()];
+        for (k, &(name, op)) in MATHS.iter().enumerate() {
+            if used[k] {
+                funcs[k] = m.import_func(IMPORT_MODULE, name, &maths_type(op.is_binary()));
+            }
+        }
+        Imports(funcs)
+    }
 }
 
 /// The bytes of one module that exports each `(name, program)` of `kernels`
@@ -82,28 +112,102 @@ pub enum EmitError {
 /// the maths functions the programs use.
 pub fn module(kernels: &[(&str, &Program)]) -> Result<Vec<u8>, EmitError> {
     let mut m = Module::new();
-    m.import_memory(IMPORT_MODULE, "memory");
     let needed: Vec<Vec<bool>> = kernels.iter().map(|(_, p)| needed(p)).collect();
-    let mut used = vec![false; MATHS.len()];
-    for ((_, p), needed) in kernels.iter().zip(&needed) {
-        let first = p.first_inst_slot();
-        for (k, i) in p.insts().iter().enumerate() {
-            if let (true, Some(m)) = (needed[first + k], maths_index(i.op)) {
-                used[m] = true;
+    let programs: Vec<(&Program, &[bool])> = kernels.iter().zip(&needed).map(|((_, p), n)| (*p, &n[..])).collect();
+    let imports = Imports::declare(&mut m, &programs);
+    let ty = kernel_type();
+    for ((name, p), needed) in kernels.iter().zip(&needed) {
+        let f = m.define(&ty, kernel(p, needed, &imports)?);
+        m.export(name, f);
+    }
+    Ok(m.finish())
+}
+
+/// The signature of the emitted RK4 stepper: `(t, y, h, steps, live)`.
+pub fn rk4_type() -> FuncType {
+    FuncType { params: vec![ValType::F64, ValType::I32, ValType::F64, ValType::I32, ValType::I32], results: vec![] }
+}
+
+/// A module exporting `rk4(t, y, h, steps, live)`: `steps` steps of the
+/// classical fourth-order Runge–Kutta method (Kutta 1901; Hairer, Nørsett &
+/// Wanner, Solving ODEs I, Table II.1.2, from memory) on the rates `rates`,
+/// with the stage loop and the formulas in one function, the states kept in
+/// locals and written back to `y` at the end.
+///
+/// Each step computes, in this order and with these roundings,
+/// `k1 = f(t, y)`, `k2 = f(t + h·0.5, y + (h·0.5)·k1)`,
+/// `k3 = f(t + h·0.5, y + (h·0.5)·k2)`, `k4 = f(t + h, y + h·k3)`,
+/// `y ← y + (h/6)·(((k1 + 2·k2) + 2·k3) + k4)` and `t ← t + h`, so that the
+/// same loop written in Rust over the interpreter gives the same bits.
+pub fn rk4_module(rates: &Program) -> Result<Vec<u8>, EmitError> {
+    let dim = rates.dim();
+    if rates.outputs().len() != dim {
+        return Err(EmitError::NotRates);
+    }
+    let mut m = Module::new();
+    let need = needed(rates);
+    let imports = Imports::declare(&mut m, &[(rates, &need)]);
+    const T0: u32 = 0;
+    const YP: u32 = 1;
+    const H: u32 = 2;
+    const STEPS: u32 = 3;
+    const LIVEP: u32 = 4;
+    let mut c = Code::new(5);
+    let mut locals = Locals::default();
+    let many = |c: &mut Code, locals: &mut Locals, n: usize| -> Result<Vec<u32>, EmitError> {
+        (0..n).map(|_| locals.fresh(c, ValType::F64)).collect()
+    };
+    let y = many(&mut c, &mut locals, dim)?;
+    let yt = many(&mut c, &mut locals, dim)?;
+    let k: Vec<Vec<u32>> = (0..4).map(|_| many(&mut c, &mut locals, dim)).collect::<Result<_, _>>()?;
+    let live = many(&mut c, &mut locals, rates.n_live())?;
+    let scalars = many(&mut c, &mut locals, 4)?;
+    let (half, sixth, t_half, t_full) = (scalars[0], scalars[1], scalars[2], scalars[3]);
+    for (i, &l) in y.iter().enumerate() {
+        c.get(YP).f64_load(8 * i as u32).set(l);
+    }
+    for (j, &l) in live.iter().enumerate() {
+        c.get(LIVEP).f64_load(8 * j as u32).set(l);
+    }
+    c.get(H).f64_const(0.5).op(Simple::F64Mul).set(half);
+    c.get(H).f64_const(6.0).op(Simple::F64Div).set(sixth);
+    c.block().loop_();
+    c.get(STEPS).op(Simple::I32Eqz).br_if(1);
+    c.get(T0).get(half).op(Simple::F64Add).set(t_half);
+    c.get(T0).get(H).op(Simple::F64Add).set(t_full);
+    // Stage s reads the states `input` at time `at` and writes k[s];
+    // the next stage's input is y + factor·k[s].
+    let stages = [(T0, &y, Some(half)), (t_half, &yt, Some(half)), (t_half, &yt, Some(H)), (t_full, &yt, None)];
+    for (s, (at, input, factor)) in stages.into_iter().enumerate() {
+        let frame = Frame { t: at, states: input, live: &live };
+        let out = body(&mut c, rates, &need, &imports, &frame, &mut locals)?;
+        for (v, &kl) in out.iter().zip(&k[s]) {
+            v.push(&mut c);
+            c.set(kl);
+        }
+        locals.release(&out);
+        if let Some(f) = factor {
+            for i in 0..dim {
+                c.get(y[i]).get(f).get(k[s][i]).op(Simple::F64Mul).op(Simple::F64Add).set(yt[i]);
             }
         }
     }
-    let mut funcs = vec![u32::MAX; MATHS.len()];
-    for (k, &(name, op)) in MATHS.iter().enumerate() {
-        if used[k] {
-            funcs[k] = m.import_func(IMPORT_MODULE, name, &maths_type(op.is_binary()));
-        }
+    for i in 0..dim {
+        c.get(y[i]).get(sixth);
+        c.get(k[0][i]).f64_const(2.0).get(k[1][i]).op(Simple::F64Mul).op(Simple::F64Add);
+        c.f64_const(2.0).get(k[2][i]).op(Simple::F64Mul).op(Simple::F64Add);
+        c.get(k[3][i]).op(Simple::F64Add);
+        c.op(Simple::F64Mul).op(Simple::F64Add).set(y[i]);
     }
-    let ty = kernel_type();
-    for ((name, p), needed) in kernels.iter().zip(&needed) {
-        let f = m.define(&ty, kernel(p, needed, &funcs)?);
-        m.export(name, f);
+    c.get(T0).get(H).op(Simple::F64Add).set(T0);
+    c.get(STEPS).i32_const(-1).op(Simple::I32Add).set(STEPS);
+    c.br(0).end().end();
+    for (i, &l) in y.iter().enumerate() {
+        c.get(YP).get(l).f64_store(8 * i as u32);
     }
+    c.end();
+    let f = m.define(&rk4_type(), c);
+    m.export("rk4", f);
     Ok(m.finish())
 }
 
@@ -133,21 +237,93 @@ fn needed(p: &Program) -> Vec<bool> {
     needed
 }
 
-/// The body of one kernel for program `p`, whose slots that matter are
-/// `needed`; `funcs[k]` is the function index of `MATHS[k]` where imported.
-fn kernel(p: &Program, needed: &[bool], funcs: &[u32]) -> Result<Code, EmitError> {
+/// The `f64` locals of a function being emitted; values that are dead give
+/// theirs back for reuse.
+#[derive(Default)]
+struct Locals {
+    free: Vec<u32>,
+    count: usize,
+}
+
+impl Locals {
+    /// A new local of type `t` (never reused).
+    fn fresh(&mut self, c: &mut Code, t: ValType) -> Result<u32, EmitError> {
+        self.count += 1;
+        if self.count > MAX_LOCALS {
+            return Err(EmitError::TooLarge);
+        }
+        Ok(c.local(t))
+    }
+
+    /// An `f64` local for a value, reusing a freed one when there is one.
+    fn take(&mut self, c: &mut Code) -> Result<u32, EmitError> {
+        match self.free.pop() {
+            Some(l) => Ok(l),
+            None => self.fresh(c, ValType::F64),
+        }
+    }
+
+    /// Give back the locals of values that are no longer read.
+    fn release(&mut self, values: &[Value]) {
+        for v in values {
+            if let Value::Temp(l) = *v {
+                if !self.free.contains(&l) {
+                    self.free.push(l);
+                }
+            }
+        }
+    }
+}
+
+/// Where an output of [`body`] is.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Value {
+    /// In a local owned by the caller (`t`, a state, a live parameter).
+    Input(u32),
+    /// In a local of [`body`]'s own, to [`Locals::release`] once read.
+    Temp(u32),
+    /// A constant.
+    Const(f64),
+}
+
+impl Value {
+    fn push(self, c: &mut Code) {
+        match self {
+            Value::Input(l) | Value::Temp(l) => c.get(l),
+            Value::Const(v) => c.f64_const(v),
+        };
+    }
+}
+
+/// The locals holding a program's inputs.
+struct Frame<'a> {
+    /// The independent variable.
+    t: u32,
+    /// One per state (only those the program reads are used).
+    states: &'a [u32],
+    /// One per live parameter.
+    live: &'a [u32],
+}
+
+/// Emit the instructions of `p` whose slots are `needed`, reading its inputs
+/// from `frame`; returns where each output is.
+fn body(
+    c: &mut Code,
+    p: &Program,
+    needed: &[bool],
+    imports: &Imports,
+    frame: &Frame,
+    locals: &mut Locals,
+) -> Result<Vec<Value>, EmitError> {
     let dim = p.dim();
-    let n_live = p.n_live();
-    let first_const = 1 + dim + n_live;
+    let first_const = 1 + dim + p.n_live();
     let first_inst = p.first_inst_slot();
     let insts = p.insts();
     let outputs = p.outputs();
     let total = first_inst + insts.len();
-    if (dim.max(n_live).max(outputs.len()) as u64) * 8 > u32::MAX as u64 {
-        return Err(EmitError::TooLarge);
-    }
+    let consts = p.consts();
 
-    // The last instruction that reads each slot; outputs are read at the end.
+    // The last instruction that reads each slot; outputs are read after all.
     const AT_END: usize = usize::MAX;
     let mut last_use = vec![0usize; total];
     for (k, i) in insts.iter().enumerate() {
@@ -160,51 +336,27 @@ fn kernel(p: &Program, needed: &[bool], funcs: &[u32]) -> Result<Code, EmitError
         last_use[o as usize] = AT_END;
     }
 
-    let mut c = Code::new(4);
-    let mut loc = vec![u32::MAX; total];
-    let mut free: Vec<u32> = Vec::new();
-    let mut n_locals = 0usize;
-    let mut alloc = |c: &mut Code, free: &mut Vec<u32>| -> Result<u32, EmitError> {
-        if let Some(l) = free.pop() {
-            return Ok(l);
-        }
-        n_locals += 1;
-        if n_locals > MAX_LOCALS {
-            return Err(EmitError::TooLarge);
-        }
-        Ok(c.local(ValType::F64))
-    };
-    loc[0] = T;
-    // States and live parameters are loaded once, up front.
-    for (base, first, n) in [(Y, 1, dim), (LIVE, 1 + dim, n_live)] {
-        for i in 0..n {
-            if needed[first + i] {
-                let l = alloc(&mut c, &mut free)?;
-                c.get(base).f64_load(8 * i as u32).set(l);
-                loc[first + i] = l;
-            }
-        }
+    let mut val = vec![Value::Const(f64::NAN); total];
+    val[0] = Value::Input(frame.t);
+    for (i, &l) in frame.states.iter().enumerate().take(dim) {
+        val[1 + i] = Value::Input(l);
     }
-    let consts = p.consts();
-    let push = |c: &mut Code, loc: &[u32], s: u32| {
-        let s = s as usize;
-        if (first_const..first_inst).contains(&s) {
-            c.f64_const(consts[s - first_const]);
-        } else {
-            c.get(loc[s]);
-        }
-    };
+    for (j, &l) in frame.live.iter().enumerate() {
+        val[1 + dim + j] = Value::Input(l);
+    }
+    for (j, &v) in consts.iter().enumerate() {
+        val[first_const + j] = Value::Const(v);
+    }
     for (k, i) in insts.iter().enumerate() {
         if !needed[first_inst + k] {
             continue;
         }
-        let (a, b, imm) = (i.a, i.b, i.c);
-        let x = |c: &mut Code| push(c, &loc, a);
+        let (x, y, imm) = (val[i.a as usize], val[i.b as usize], i.c);
         use Op::*;
         match i.op {
             Add | Sub | Mul | Div => {
-                x(&mut c);
-                push(&mut c, &loc, b);
+                x.push(c);
+                y.push(c);
                 c.op(match i.op {
                     Add => Simple::F64Add,
                     Sub => Simple::F64Sub,
@@ -213,7 +365,7 @@ fn kernel(p: &Program, needed: &[bool], funcs: &[u32]) -> Result<Code, EmitError
                 });
             }
             AddC | MulC | DivC => {
-                x(&mut c);
+                x.push(c);
                 c.f64_const(imm).op(match i.op {
                     AddC => Simple::F64Add,
                     MulC => Simple::F64Mul,
@@ -222,16 +374,16 @@ fn kernel(p: &Program, needed: &[bool], funcs: &[u32]) -> Result<Code, EmitError
             }
             CSub | CDiv => {
                 c.f64_const(imm);
-                x(&mut c);
+                x.push(c);
                 c.op(if i.op == CSub { Simple::F64Sub } else { Simple::F64Div });
             }
             Sq => {
-                x(&mut c);
-                x(&mut c);
+                x.push(c);
+                x.push(c);
                 c.op(Simple::F64Mul);
             }
             Neg | Sqrt | Abs | Floor | Ceil | Trunc => {
-                x(&mut c);
+                x.push(c);
                 c.op(match i.op {
                     Neg => Simple::F64Neg,
                     Sqrt => Simple::F64Sqrt,
@@ -244,54 +396,79 @@ fn kernel(p: &Program, needed: &[bool], funcs: &[u32]) -> Result<Code, EmitError
             Sign => {
                 // x > 0 ? 1 : (x < 0 ? -1 : (x == 0 ? 0 : x))
                 c.f64_const(1.0).f64_const(-1.0).f64_const(0.0);
-                x(&mut c);
+                x.push(c);
                 for cmp in [Simple::F64Eq, Simple::F64Lt, Simple::F64Gt] {
-                    x(&mut c);
+                    x.push(c);
                     c.f64_const(0.0).op(cmp).op(Simple::Select);
                 }
             }
             Step => {
                 // x >= 0 ? 1 : (x < 0 ? 0 : x)
                 c.f64_const(1.0).f64_const(0.0);
-                x(&mut c);
+                x.push(c);
                 for cmp in [Simple::F64Lt, Simple::F64Ge] {
-                    x(&mut c);
+                    x.push(c);
                     c.f64_const(0.0).op(cmp).op(Simple::Select);
                 }
             }
             PowC => {
-                x(&mut c);
+                x.push(c);
                 c.f64_const(imm);
             }
             CPow => {
                 c.f64_const(imm);
-                x(&mut c);
+                x.push(c);
             }
             op if op.is_binary() => {
-                x(&mut c);
-                push(&mut c, &loc, b);
+                x.push(c);
+                y.push(c);
             }
-            _ => x(&mut c),
+            _ => x.push(c),
         }
         if let Some(m) = maths_index(i.op) {
-            c.call(funcs[m]);
+            c.call(imports.0[m]);
         }
-        // Operands read for the last time give their locals back (inputs
-        // and constants included; `t` is a parameter and never freed).
-        for s in [a, b] {
-            let s = s as usize;
-            if s != 0 && last_use[s] == k && loc[s] != u32::MAX && !(first_const..first_inst).contains(&s) {
-                free.push(loc[s]);
-                loc[s] = u32::MAX;
+        // Operands read for the last time give their locals back.
+        for s in [i.a as usize, i.b as usize] {
+            if last_use[s] == k {
+                locals.release(&[val[s]]);
             }
         }
-        let l = alloc(&mut c, &mut free)?;
+        let l = locals.take(c)?;
         c.set(l);
-        loc[first_inst + k] = l;
+        val[first_inst + k] = Value::Temp(l);
     }
-    for (k, &o) in outputs.iter().enumerate() {
+    Ok(outputs.iter().map(|&o| val[o as usize]).collect())
+}
+
+/// The body of one kernel for program `p`, whose slots that matter are
+/// `needed`.
+fn kernel(p: &Program, needed: &[bool], imports: &Imports) -> Result<Code, EmitError> {
+    let dim = p.dim();
+    let n_live = p.n_live();
+    if (dim.max(n_live).max(p.outputs().len()) as u64) * 8 > u32::MAX as u64 {
+        return Err(EmitError::TooLarge);
+    }
+    let mut c = Code::new(4);
+    let mut locals = Locals::default();
+    // States and live parameters that the program reads are loaded once, up front.
+    let load = |c: &mut Code, locals: &mut Locals, base: u32, first: usize, n: usize| {
+        let mut ls = vec![u32::MAX; n];
+        for (i, l) in ls.iter_mut().enumerate() {
+            if needed[first + i] {
+                *l = locals.fresh(c, ValType::F64)?;
+                c.get(base).f64_load(8 * i as u32).set(*l);
+            }
+        }
+        Ok::<_, EmitError>(ls)
+    };
+    let states = load(&mut c, &mut locals, Y, 1, dim)?;
+    let live = load(&mut c, &mut locals, LIVE, 1 + dim, n_live)?;
+    let frame = Frame { t: T, states: &states, live: &live };
+    let out = body(&mut c, p, needed, imports, &frame, &mut locals)?;
+    for (k, v) in out.iter().enumerate() {
         c.get(OUT);
-        push(&mut c, &loc, o);
+        v.push(&mut c);
         c.f64_store(8 * k as u32);
     }
     c.end();

@@ -16,4 +16,4 @@ pub mod lower;
 pub mod wasm;
 pub mod model;
 
-pub use model::{EmittedModel, KernelFn, Loader};
+pub use model::{EmittedModel, KernelFn, Loader, Rk4Fn};

@@ -1,10 +1,11 @@
 //! [`EmittedModel`]: a compiled sheet whose formulas run as emitted wasm.
 
-use super::lower::{module, EmitError};
+use super::lower::{module, rk4_module};
 use crate::problem::{EventSpec, NonFiniteCause, Problem};
 use crate::sheet::ir::Program;
 use crate::sheet::Model;
 use std::sync::atomic::{AtomicBool, Ordering};
+use std::borrow::BorrowMut;
 use std::sync::OnceLock;
 
 /// An emitted kernel as the solver calls it: `f(t, y, out, live)`, reading
@@ -13,22 +14,27 @@ use std::sync::OnceLock;
 /// index into the solver's function table, where the loader installs it.
 pub type KernelFn = unsafe extern "C" fn(t: f64, y: *const f64, out: *mut f64, live: *const f64);
 
+/// The emitted RK4 stepper ([`lower::rk4_module`](super::lower::rk4_module)):
+/// `f(t, y, h, steps, live)` advances the states at `y` in place.
+pub type Rk4Fn = unsafe extern "C" fn(t: f64, y: *mut f64, h: f64, steps: i32, live: *const f64);
+
 /// What turns module bytes into callable kernels. Only the web layer can
 /// provide one (natively there is no wasm engine), and it registers it once
 /// with [`set_loader`].
 #[derive(Clone, Copy, Debug)]
 pub struct Loader {
     /// Compile and instantiate `bytes`, install its exports `names` and
-    /// return them in that order; `None` when the engine refuses (a
-    /// Content-Security-Policy without `'wasm-unsafe-eval'`, or any error).
+    /// return their function pointers as addresses (on wasm32, indices into
+    /// the solver's function table), in that order; `None` when the engine
+    /// refuses (a Content-Security-Policy without `'wasm-unsafe-eval'`, or
+    /// any error).
     ///
     /// # Safety contract
-    /// Each returned pointer must call a function of type
-    /// `(f64, i32, i32, i32) -> ()` that was produced by
-    /// [`lower::module`](super::lower::module) from these `bytes`.
-    pub load: fn(bytes: &[u8], names: &[&str]) -> Option<Vec<KernelFn>>,
-    /// Give back kernels that will not be called again.
-    pub release: fn(&[KernelFn]),
+    /// Each returned address must be a function pointer to the export of
+    /// that name of these `bytes`, with the export's own signature.
+    pub load: fn(bytes: &[u8], names: &[&str]) -> Option<Vec<usize>>,
+    /// Give back functions that will not be called again.
+    pub release: fn(&[usize]),
 }
 
 static LOADER: OnceLock<Loader> = OnceLock::new();
@@ -51,9 +57,20 @@ pub fn available() -> bool {
     LOADER.get().is_some() && ENABLED.load(Ordering::Relaxed)
 }
 
-/// Kernels of one instantiated module, given back when dropped.
+/// The exports of one instantiated module, as function addresses; given back
+/// when dropped.
 #[derive(Debug)]
-struct Kernels(Vec<KernelFn>);
+struct Kernels(Vec<usize>);
+
+impl Kernels {
+    /// Export `k` as a kernel.
+    fn kernel(&self, k: usize) -> KernelFn {
+        // SAFETY: every module loaded with `load` below for kernels holds
+        // only kernels (`lower::module`); the loader's contract makes the
+        // address a pointer to one.
+        unsafe { std::mem::transmute::<usize, KernelFn>(self.0[k]) }
+    }
+}
 
 impl Drop for Kernels {
     fn drop(&mut self) {
@@ -63,16 +80,20 @@ impl Drop for Kernels {
     }
 }
 
-/// Emit, load and install one module holding `programs` under `names`.
+/// Load and install the module `bytes`, with exports `names`.
+fn load_bytes(bytes: &[u8], names: &[&str]) -> Option<Kernels> {
+    let loader = LOADER.get()?;
+    let fns = (loader.load)(bytes, names)?;
+    (fns.len() == names.len() && fns.iter().all(|&f| f != 0)).then_some(Kernels(fns))
+}
+
+/// Emit, load and install one module holding `programs` as kernels under `names`.
 fn load(names: &[&str], programs: &[&Program]) -> Option<Kernels> {
     if !available() {
         return None;
     }
-    let loader = LOADER.get()?;
     let named: Vec<(&str, &Program)> = names.iter().copied().zip(programs.iter().copied()).collect();
-    let bytes = module(&named).map_err(|EmitError::TooLarge| ()).ok()?;
-    let fns = (loader.load)(&bytes, names)?;
-    (fns.len() == names.len()).then_some(Kernels(fns))
+    load_bytes(&module(&named).ok()?, names)
 }
 
 /// Where a kernel's results go: the number of outputs it writes.
@@ -103,21 +124,31 @@ const DERIVATIVES: [&str; 2] = ["jacobian", "dfdt"];
 /// parameters are read from the tapes' own memory, so changing one
 /// ([`set_param`](Self::set_param)) needs no new module. The Jacobian and
 /// `∂f/∂t` get a second module the first time they are asked for.
-#[derive(Debug)]
-pub struct EmittedModel {
-    model: Model,
+pub struct EmittedModel<M: BorrowMut<Model> = Model> {
+    model: M,
     main: Option<Kernels>,
     derivatives: Option<Kernels>,
     /// Whether the derivative module was tried for the current tapes.
     derivatives_tried: bool,
+    /// The RK4 stepper, once asked for; `None` inside when it could not be made.
+    stepper: Option<Option<Kernels>>,
     loads: u32,
     scratch: Vec<f64>,
 }
 
-impl EmittedModel {
-    /// Wrap `model`, emitting its module when a loader is available.
-    pub fn new(model: Model) -> Self {
-        let mut m = EmittedModel { model, main: None, derivatives: None, derivatives_tried: false, loads: 0, scratch: Vec::new() };
+impl<M: BorrowMut<Model>> EmittedModel<M> {
+    /// Wrap `model` (a [`Model`] or a `&mut Model`), emitting its module
+    /// when a loader is available.
+    pub fn new(model: M) -> Self {
+        let mut m = EmittedModel {
+            model,
+            main: None,
+            derivatives: None,
+            derivatives_tried: false,
+            stepper: None,
+            loads: 0,
+            scratch: Vec::new(),
+        };
         m.reload();
         m
     }
@@ -126,7 +157,8 @@ impl EmittedModel {
         self.main = None;
         self.derivatives = None;
         self.derivatives_tried = false;
-        let m = &self.model;
+        self.stepper = None;
+        let m: &Model = self.model.borrow();
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
         self.scratch = vec![0.0; m.all_program().outputs().len()];
@@ -145,11 +177,11 @@ impl EmittedModel {
 
     /// The wrapped model.
     pub fn model(&self) -> &Model {
-        &self.model
+        self.model.borrow()
     }
 
     /// Unwrap the model.
-    pub fn into_model(self) -> Model {
+    pub fn into_model(self) -> M {
         let EmittedModel { model, .. } = self;
         model
     }
@@ -157,8 +189,8 @@ impl EmittedModel {
     /// [`Model::set_param`]: for a live parameter no new module is needed;
     /// for any other the sheet recompiles and the module is emitted again.
     pub fn set_param(&mut self, name: &str, value: f64) -> bool {
-        let live = self.model.live().iter().any(|l| l == name);
-        let ok = self.model.set_param(name, value);
+        let live = self.model.borrow().live().iter().any(|l| l == name);
+        let ok = self.model.borrow_mut().set_param(name, value);
         if ok && !live {
             self.reload();
         }
@@ -167,33 +199,63 @@ impl EmittedModel {
 
     /// [`Model::set_live`], then a new module for the new tapes.
     pub fn set_live(&mut self, names: &[&str]) {
-        self.model.set_live(names);
+        self.model.borrow_mut().set_live(names);
         self.reload();
     }
 
     fn main_kernel(&self, k: usize) -> Option<KernelFn> {
-        self.main.as_ref().map(|m| m.0[k])
+        self.main.as_ref().map(|m| m.kernel(k))
+    }
+
+    /// Take `steps` steps of size `h` of the classical RK4 method from
+    /// `(t, y)`, updating `y`, in one call of an emitted function that holds
+    /// the stage loop and the formulas together (see
+    /// [`lower::rk4_module`](super::lower::rk4_module) for the exact
+    /// arithmetic). Returns `false`, with `y` untouched, when no such
+    /// function can be emitted here or `y` is not `dim` long.
+    pub fn rk4_steps(&mut self, t: f64, y: &mut [f64], h: f64, steps: u32) -> bool {
+        if self.stepper.is_none() {
+            let made = if self.main.is_some() {
+                rk4_module(self.model.borrow().rhs_program()).ok().and_then(|b| load_bytes(&b, &["rk4"]))
+            } else {
+                None
+            };
+            self.loads += u32::from(made.is_some());
+            self.stepper = Some(made);
+        }
+        let Some(Some(k)) = &self.stepper else { return false };
+        if y.len() != self.model.borrow().dim() || steps > i32::MAX as u32 {
+            return false;
+        }
+        // SAFETY: the module holds only `rk4` (`lower::rk4_module`), of type
+        // `Rk4Fn`; it reads and writes `dim` states at `y` and reads the rate
+        // tape's live values.
+        unsafe {
+            let f = std::mem::transmute::<usize, Rk4Fn>(k.0[0]);
+            f(t, y.as_mut_ptr(), h, steps as i32, self.model.borrow().rhs_program().live_values().as_ptr());
+        }
+        true
     }
 
     fn derivative_kernel(&mut self, k: usize) -> Option<KernelFn> {
         if !self.derivatives_tried && self.main.is_some() {
             self.derivatives_tried = true;
-            self.model.jacobian_program();
-            self.model.time_derivative_program();
-            let jac = self.model.jacobian_program().clone();
-            let dfdt = self.model.time_derivative_program();
+            self.model.borrow_mut().jacobian_program();
+            self.model.borrow_mut().time_derivative_program();
+            let jac = self.model.borrow_mut().jacobian_program().clone();
+            let dfdt = self.model.borrow_mut().time_derivative_program();
             self.derivatives = load(&DERIVATIVES, &[&jac, dfdt]);
             self.loads += u32::from(self.derivatives.is_some());
         }
-        self.derivatives.as_ref().map(|d| d.0[k])
+        self.derivatives.as_ref().map(|d| d.kernel(k))
     }
 
     /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`;
     /// `false` when it is not emitted or the lengths do not fit.
     fn run_derivative(&mut self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
-        let dim = self.model.dim();
+        let dim = self.model.borrow().dim();
         let Some(f) = self.derivative_kernel(k) else { return false };
-        let p = if k == 0 { self.model.jacobian_program() } else { self.model.time_derivative_program() };
+        let p = if k == 0 { self.model.borrow_mut().jacobian_program() } else { self.model.borrow_mut().time_derivative_program() };
         if !fits(p, dim, y, out) {
             return false;
         }
@@ -203,39 +265,39 @@ impl EmittedModel {
     }
 }
 
-impl Problem for EmittedModel {
+impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     fn dim(&self) -> usize {
-        self.model.dim()
+        self.model.borrow().dim()
     }
 
     fn state_names(&self) -> &[String] {
-        self.model.state_names()
+        self.model.borrow().state_names()
     }
 
     fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-        let p = self.model.rhs_program();
+        let p = self.model.borrow().rhs_program();
         match self.main_kernel(0) {
             // SAFETY: kernel 0 of the main module is emitted from this tape; `fits` checked the lengths.
-            Some(f) if fits(p, self.model.dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
-            _ => self.model.rhs(t, y, dy),
+            Some(f) if fits(p, self.model.borrow().dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
+            _ => self.model.borrow_mut().rhs(t, y, dy),
         }
     }
 
     fn jacobian(&mut self, t: f64, y: &[f64], jac: &mut [f64]) -> bool {
-        self.run_derivative(0, t, y, jac) || self.model.jacobian(t, y, jac)
+        self.run_derivative(0, t, y, jac) || self.model.borrow_mut().jacobian(t, y, jac)
     }
 
     fn time_derivative(&mut self, t: f64, y: &[f64], dfdt: &mut [f64]) -> bool {
-        self.run_derivative(1, t, y, dfdt) || self.model.time_derivative(t, y, dfdt)
+        self.run_derivative(1, t, y, dfdt) || self.model.borrow_mut().time_derivative(t, y, dfdt)
     }
 
     fn helper_names(&self) -> &[String] {
-        self.model.helper_names()
+        self.model.borrow().helper_names()
     }
 
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let dim = self.model.dim();
-        let p = self.model.all_program();
+        let dim = self.model.borrow().dim();
+        let p = self.model.borrow().all_program();
         match self.main_kernel(1) {
             Some(f) if fits(p, dim, y, &self.scratch) => {
                 // SAFETY: kernel 1 of the main module is emitted from this tape; lengths checked.
@@ -244,38 +306,38 @@ impl Problem for EmittedModel {
                     *o = *v;
                 }
             }
-            _ => self.model.helpers(t, y, out),
+            _ => self.model.borrow_mut().helpers(t, y, out),
         }
     }
 
     fn events(&self) -> &[EventSpec] {
-        self.model.events()
+        self.model.borrow().events()
     }
 
     fn event_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.event_program();
+        let p = self.model.borrow().event_program();
         match self.main_kernel(2) {
             // SAFETY: kernel 2 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.event_values(t, y, out),
+            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
+            _ => self.model.borrow_mut().event_values(t, y, out),
         }
     }
 
     fn switch_count(&self) -> usize {
-        self.model.switch_count()
+        self.model.borrow().switch_count()
     }
 
     fn switch_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.switch_program();
+        let p = self.model.borrow().switch_program();
         match self.main_kernel(3) {
             // SAFETY: kernel 3 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.switch_values(t, y, out),
+            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
+            _ => self.model.borrow_mut().switch_values(t, y, out),
         }
     }
 
     fn explain_nonfinite(&mut self, t: f64, y: &[f64]) -> Option<NonFiniteCause> {
         // A diagnosis after the fact: the interpreter keeps every slot to look at.
-        self.model.explain_nonfinite(t, y)
+        self.model.borrow_mut().explain_nonfinite(t, y)
     }
 }

@@ -18,7 +18,7 @@ use wasm_bindgen::prelude::*;
 use wasm_bindgen::JsCast;
 
 use crate::emit::lower::{IMPORT_MODULE, MATHS};
-use crate::emit::{self, EmittedModel, KernelFn, Loader};
+use crate::emit::{self, EmittedModel, Loader};
 use crate::problem::Problem;
 use crate::sheet::ir::{apply, Op};
 
@@ -94,39 +94,41 @@ fn table() -> WebAssembly::Table {
     wasm_bindgen::function_table().unchecked_into()
 }
 
-fn install(bytes: &[u8], names: &[&str]) -> Result<Vec<KernelFn>, JsValue> {
+fn install(bytes: &[u8], names: &[&str]) -> Result<Vec<usize>, JsValue> {
     let module = WebAssembly::Module::new(&Uint8Array::from(bytes).into())?;
     let instance = WebAssembly::Instance::new(&module, &imports()?)?;
     let exports = instance.exports();
     let table = table();
     let mut fns = Vec::with_capacity(names.len());
     for name in names {
-        let f: Function = Reflect::get(&exports, &(*name).into())?.dyn_into()?;
-        let slot = match FREE.with(|free| free.borrow_mut().pop()) {
-            Some(s) => s,
-            None => table.grow(1)?,
+        let put = |fns: &mut Vec<usize>| -> Result<(), JsValue> {
+            let f: Function = Reflect::get(&exports, &(*name).into())?.dyn_into()?;
+            let slot = match FREE.with(|free| free.borrow_mut().pop()) {
+                Some(s) => s,
+                None => table.grow(1)?,
+            };
+            // On wasm32 a function pointer is an index into this table.
+            fns.push(slot as usize);
+            table.set(slot, &f)
         };
-        table.set(slot, &f)?;
-        if slot == 0 {
-            return Err(JsValue::from_str("table slot 0 is the null function"));
+        if let Err(e) = put(&mut fns) {
+            release(&fns);
+            return Err(e);
         }
-        // SAFETY: on wasm32 a function pointer is an index into this table,
-        // and slot `slot` now holds a kernel of type (f64, i32, i32, i32) -> ().
-        fns.push(unsafe { std::mem::transmute::<usize, KernelFn>(slot as usize) });
     }
     Ok(fns)
 }
 
-fn load(bytes: &[u8], names: &[&str]) -> Option<Vec<KernelFn>> {
+fn load(bytes: &[u8], names: &[&str]) -> Option<Vec<usize>> {
     install(bytes, names).ok()
 }
 
-fn release(fns: &[KernelFn]) {
+fn release(fns: &[usize]) {
     let table = table();
     FREE.with(|free| {
         let mut free = free.borrow_mut();
         for &f in fns {
-            let slot = f as usize as u32;
+            let slot = f as u32;
             // Drop the instance's function so that its module can be collected.
             if table.set_raw(slot, &JsValue::NULL).is_ok() {
                 free.push(slot);

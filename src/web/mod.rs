@@ -5,6 +5,8 @@ use wasm_bindgen::prelude::*;
 
 use crate::api;
 
+#[cfg(feature = "bench")]
+mod bench_emit;
 mod bench_stiff;
 mod emit;
 

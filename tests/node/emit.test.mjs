@@ -7,7 +7,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { existsSync, readFileSync } from "node:fs";
-import { initSync, emitCheck, emitModule, setEmitting } from "../../www/pkg/ratebook.js";
+import { initSync, emitCheck, emitModule, setEmitting, solve } from "../../www/pkg/ratebook.js";
 import { corpus, points, sameBits } from "./emit_corpus.mjs";
 
 const examplesUrl = new URL("../../www/examples.js", import.meta.url);
@@ -127,4 +127,48 @@ test("table slots are reused: many models do not grow the table without bound", 
   const before = table.length;
   for (let i = 0; i < 2000; i++) check(sheet, [0.5, i / 100]);
   assert.ok(table.length <= before + 6, `table grew from ${before} to ${table.length}`);
+});
+
+/** Every number of a report, in order, for a bitwise comparison. */
+function numbers(report) {
+  const out = [];
+  const walk = (v) => {
+    if (typeof v === "number") out.push(v);
+    else if (Array.isArray(v)) v.forEach(walk);
+    else if (v && typeof v === "object") Object.keys(v).sort().forEach((k) => walk(v[k]));
+  };
+  walk(report);
+  return out;
+}
+
+function solveBothWays(sheet, settings) {
+  setEmitting(false);
+  let interpreted;
+  try {
+    interpreted = solve(sheet, settings);
+  } finally {
+    setEmitting(true);
+  }
+  const emitted = solve(sheet, settings);
+  return { interpreted, emitted };
+}
+
+test("whole runs through the JS API are bit-identical with emitting on and off", () => {
+  // Every example with every explicit method; the corpus (capped in steps,
+  // since random rates can be stiff or blow up) with two.
+  const runs = [];
+  const all = ["dp54", "dp853", "bs32", "auto", "heun"];
+  for (const ex of EXAMPLES ?? []) runs.push([ex.id, ex.sheet, ex.settings, all]);
+  for (const [i, { sheet }] of corpus(0xab1e, 30).entries()) runs.push([`corpus ${i}`, sheet, { to: 2, maxSteps: 3000 }, ["dp54", "heun"]]);
+  let compared = 0;
+  for (const [name, sheet, settings, methods] of runs) {
+    for (const method of methods) {
+      const r = solveBothWays(sheet, { ...settings, method, step: settings.step ?? 0.01 });
+      assert.equal(r.emitted.status, r.interpreted.status, `${name} ${method}`);
+      const a = numbers(r.interpreted), b = numbers(r.emitted);
+      assert.equal(sameBits(a, b), -1, `${name} ${method}: reports differ`);
+      compared += a.length;
+    }
+  }
+  assert.ok(compared > (EXAMPLES ? 100_000 : 10_000), `only ${compared} numbers compared`);
 });
