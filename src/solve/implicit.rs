@@ -12,9 +12,7 @@
 //! A failed iteration returns [`StepFault::NewtonFailed`] so the driver
 //! shrinks `h` and retries; the iteration count is bounded, so it never hangs.
 
-use nalgebra::DMatrix;
-
-use super::linalg::{rates, shifted_matrix, weight, weighted_rms, Derivatives, Factored};
+use super::linalg::{rates, shifted, weight, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -172,7 +170,7 @@ impl Stepper for ThetaStepper {
             self.rho = self.deriv.spectral_radius();
             self.at_point = true;
         }
-        self.m.factor(shifted_matrix(&self.deriv.jac, n, 1.0, th * h), stats)?;
+        self.m.factor(n, shifted(&self.deriv.jac, n, 1.0, th * h), stats)?;
         let kappa = newton_kappa(tol);
         y_new.copy_from_slice(y);
         let mut conv = Contraction::default();
@@ -234,6 +232,21 @@ impl Stepper for ThetaStepper {
             let (h00, h10, h01, h11) = (2.0 * s3 - 3.0 * s2 + 1.0, s3 - 2.0 * s2 + s, -2.0 * s3 + 3.0 * s2, s3 - s2);
             for k in 0..out.len() {
                 out[k] = h00 * y0[k] + h10 * hf0[k] + h01 * y1[k] + h11 * hf1[k];
+            }
+        }
+    }
+
+    fn dense_slope(&self, theta: f64, h: f64, out: &mut [f64]) {
+        let [y0, y1, hf0, hf1] = &self.trial;
+        if self.method.theta == 1.0 {
+            for k in 0..out.len() {
+                out[k] = (y1[k] - y0[k]) / h;
+            }
+        } else {
+            let (s, s2) = (theta, theta * theta);
+            let (d00, d10, d01, d11) = (6.0 * s2 - 6.0 * s, 3.0 * s2 - 4.0 * s + 1.0, -6.0 * s2 + 6.0 * s, 3.0 * s2 - 2.0 * s);
+            for k in 0..out.len() {
+                out[k] = (d00 * y0[k] + d10 * hf0[k] + d01 * y1[k] + d11 * hf1[k]) / h;
             }
         }
     }
@@ -394,26 +407,36 @@ impl Radau {
 
     /// `ℓ_k(θ)`: the Lagrange basis on the nodes `0, c1, c2, c3` with `ℓ_k(0) = 0`.
     fn basis(&self, k: usize, theta: f64) -> f64 {
-        let mut v = theta / self.c[k];
-        for j in 0..3 {
-            if j != k {
-                v *= (theta - self.c[j]) / (self.c[k] - self.c[j]);
-            }
+        let [a, b] = self.other_nodes(k);
+        theta * (theta - a) * (theta - b) / (self.c[k] * (self.c[k] - a) * (self.c[k] - b))
+    }
+
+    /// `dℓ_k/dθ`.
+    fn basis_slope(&self, k: usize, theta: f64) -> f64 {
+        let [a, b] = self.other_nodes(k);
+        let d = (theta - a) * (theta - b) + theta * (theta - b) + theta * (theta - a);
+        d / (self.c[k] * (self.c[k] - a) * (self.c[k] - b))
+    }
+
+    fn other_nodes(&self, k: usize) -> [f64; 2] {
+        match k {
+            0 => [self.c[1], self.c[2]],
+            1 => [self.c[0], self.c[2]],
+            _ => [self.c[0], self.c[1]],
         }
-        v
     }
 
     fn factor(&mut self, n: usize, h: f64, stats: &mut Stats) -> Result<(), StepFault> {
         self.h_factored = f64::NAN;
         let jac = &self.deriv.jac;
         let a = self.a;
-        let m = DMatrix::from_fn(3 * n, 3 * n, |r, s| {
+        let m = |r: usize, s: usize| {
             let (bi, i, bj, j) = (r / n, r % n, s / n, s % n);
             let identity = if r == s { 1.0 } else { 0.0 };
             identity - h * a[bi][bj] * jac[i * n + j]
-        });
-        self.newton.factor(m, stats)?;
-        self.filter.factor(shifted_matrix(jac, n, 1.0, self.gamma0 * h), stats)?;
+        };
+        self.newton.factor(3 * n, m, stats)?;
+        self.filter.factor(n, shifted(jac, n, 1.0, self.gamma0 * h), stats)?;
         self.h_factored = h;
         Ok(())
     }
@@ -594,6 +617,15 @@ impl Stepper for Radau {
             out[q] = y0[q] + l[0] * z[q] + l[1] * z[n + q] + l[2] * z[2 * n + q];
         }
     }
+
+    fn dense_slope(&self, theta: f64, h: f64, out: &mut [f64]) {
+        let (_, z, _) = &self.trial;
+        let n = out.len();
+        let l = [self.basis_slope(0, theta), self.basis_slope(1, theta), self.basis_slope(2, theta)];
+        for q in 0..n {
+            out[q] = (l[0] * z[q] + l[1] * z[n + q] + l[2] * z[2 * n + q]) / h;
+        }
+    }
 }
 
 /// Helpers for the steppers' unit tests: a smooth nonlinear problem with an
@@ -765,6 +797,33 @@ mod tests {
         // Stage order 3: the collocation polynomial's local error is O(h^4).
         let p = order_of(&|| Box::new(Radau::new(2)), &[5, 10, 20, 40], || DenseCheck::Local(0.3));
         assert!((p - 4.0).abs() < 0.25, "observed local order {p}");
+    }
+
+    #[test]
+    fn dense_slopes_match_differences_of_the_dense_output() {
+        // The exact slope of each continuous extension against a central
+        // difference of the same polynomial (common practice, no source).
+        let steppers: Vec<Box<dyn Stepper>> = vec![
+            Box::new(Radau::new(2)),
+            Box::new(ThetaStepper::new(&TRAPEZOID, 2)),
+            Box::new(ThetaStepper::new(&BACKWARD_EULER, 2)),
+            Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 2)),
+        ];
+        for mut st in steppers {
+            fixed_step_error(st.as_mut(), 10, DenseCheck::Local(0.5));
+            let h = 0.1;
+            for &theta in &[0.1, 0.5, 0.9] {
+                let (mut lo, mut hi, mut slope) = ([0.0; 2], [0.0; 2], [0.0; 2]);
+                let d = 1e-6;
+                st.dense(theta - d, &mut lo);
+                st.dense(theta + d, &mut hi);
+                st.dense_slope(theta, h, &mut slope);
+                for i in 0..2 {
+                    let fd = (hi[i] - lo[i]) / (2.0 * d * h);
+                    assert!((slope[i] - fd).abs() < 1e-6 * fd.abs().max(1.0), "{} vs {}", slope[i], fd);
+                }
+            }
+        }
     }
 
     #[test]

@@ -16,7 +16,7 @@
 //! `y(t + θh) = (1-θ) y + θ (y_new + (1-θ)(q1 + θ q2))` with
 //! `q_k = Σ_j h_kj u_j`.
 
-use super::linalg::{rates, shifted_matrix, weighted_rms, Derivatives, Factored};
+use super::linalg::{rates, shifted, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -182,7 +182,7 @@ impl Stepper for Rosenbrock {
         }
         if !self.w.is_factored() || self.h_factored != h {
             self.h_factored = f64::NAN;
-            self.w.factor(shifted_matrix(&self.deriv.jac, n, 1.0 / (h * tab.gamma), 1.0), stats)?;
+            self.w.factor(n, shifted(&self.deriv.jac, n, 1.0 / (h * tab.gamma), 1.0), stats)?;
             self.h_factored = h;
         }
         for i in 0..tab.stages() {
@@ -249,6 +249,14 @@ impl Stepper for Rosenbrock {
         let [y0, y1, q1, q2] = &self.trial;
         for k in 0..out.len() {
             out[k] = (1.0 - theta) * y0[k] + theta * (y1[k] + (1.0 - theta) * (q1[k] + theta * q2[k]));
+        }
+    }
+
+    fn dense_slope(&self, theta: f64, h: f64, out: &mut [f64]) {
+        let [y0, y1, q1, q2] = &self.trial;
+        let (a, b) = (1.0 - 2.0 * theta, theta * (2.0 - 3.0 * theta));
+        for k in 0..out.len() {
+            out[k] = (y1[k] - y0[k] + a * q1[k] + b * q2[k]) / h;
         }
     }
 }
