@@ -6,7 +6,9 @@
 // bundler: imports are single `import { ... } from "./x.js";` statements and
 // top-level names are unique across modules. Modules are concatenated in
 // dependency order with their import lines and `export` keywords removed.
-import { readFileSync, writeFileSync } from "node:fs";
+import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { tmpdir } from "node:os";
 import { dirname, join, normalize } from "node:path";
 
 const [src, out] = process.argv.slice(2);
@@ -36,7 +38,17 @@ function bundle(entry) {
     parts.push(`// ---- ${key.slice(root.length + 1)}\n${stripModule(code)}`);
   };
   visit(entry);
-  return parts.join("\n");
+  return checked(entry, parts.join("\n"));
+}
+
+// A bundle must still parse as one module: this catches two modules that
+// declare the same top-level name.
+function checked(entry, code) {
+  const file = join(mkdtempSync(join(tmpdir(), "ratebook-inline-")), "bundle.mjs");
+  writeFileSync(file, code);
+  const r = spawnSync(process.execPath, ["--check", file], { encoding: "utf8" });
+  if (r.status !== 0) throw new Error(`inline: the bundle of ${entry} does not parse:\n${r.stderr}`);
+  return code;
 }
 
 // Escape `</script` so inlined code cannot end its own script element.
@@ -52,7 +64,10 @@ html = html.replace(/<script type="text\/plain" id="([^"]+)" data-bundle="([^"]+
 html = html.replace(/<script type="module" src="([^"]+)"><\/script>/g, (_, s) =>
   `<script type="module">\n${safe(bundle(join(root, s)))}\n</script>`);
 
-if (/\s(src|href)="(?!data:|#)[^"]*"/.test(html)) {
+// Look for references in the markup only: inlined script text may well hold
+// strings such as an <iframe src="…"> snippet for the user to copy.
+const markup = html.replace(/(<script\b[^>]*>)[\s\S]*?<\/script>/gi, "$1</script>");
+if (/\s(src|href)="(?!data:|#)[^"]*"/.test(markup)) {
   throw new Error("inline: an external reference is left in the single file");
 }
 writeFileSync(out, html);

@@ -1,38 +1,385 @@
-// The workbench page: loads the solver, solves the sheet, draws the result.
-import { initSync, solve, drawTimePlot, version } from "./pkg/ratebook.js";
+// The workbench page: wires the editor, settings, views, results and keeping
+// of work around the solver.
+import { initSync, solve, compareMethods, methods, version } from "./pkg/ratebook.js";
 import { wasmBytes } from "./pkg/wasm_bytes.js";
+import { $, el, notify, download } from "./dom.js";
+import { EXAMPLES, exampleById } from "./examples.js";
+import { initEditor, setProblems, refreshEditor, readOnly } from "./editor.js";
+import { initRunner, setModule, setLocal, inWorker, hasWorker } from "./runner.js";
+import { initExports } from "./plotkit.js";
+import { initTimeView, showRun, drawTime } from "./timeview.js";
+import { initFieldView, showFieldRun, drawField, setFieldAxes } from "./fieldview.js";
+import { initCompareView, showComparison, clearComparison, setCompareQuantities } from "./compareview.js";
+import { showSummary, showTable, downloadCsv } from "./results.js";
+import { showParams } from "./params.js";
+import { sheetStart, grid } from "./runinfo.js";
+import { autosave, loadAutosave, keepPrevious, loadPrevious, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
+import { renderAccuracy } from "./accuracy.js";
 
-const DEMO = `# Cast aluminium bracket cooling in shop air
-T' = -0.0021*(T - 22)
-T(0) = 180
-`;
+// The page exactly as it arrived, for the single-file download (captured
+// before anything below changes the document).
+const PRISTINE_PAGE = "<!doctype html>\n" + document.documentElement.outerHTML;
+const SINGLE_FILE = ($("worker-src")?.textContent ?? "").trim().length > 0;
 
-initSync({ module: wasmBytes() });
+let METHODS = [];
+const PLOT_POINTS = 600;
+const EDIT_DELAY_MS = 300;
 
-const $ = (id) => document.getElementById(id);
-const sheet = $("sheet");
-sheet.value = DEMO;
+const solverModule = new WebAssembly.Module(wasmBytes());
+initSync({ module: solverModule });
+setModule(solverModule);
+// [id, label, "adaptive" | "fixed"], `auto` first, from the solver's registry.
+METHODS = methods().map((m) => [m.id, m.adaptive ? m.name : `${m.name}, fixed h`, m.adaptive ? "adaptive" : "fixed"]);
+METHODS.sort((a, b) => (b[0] === "auto") - (a[0] === "auto"));
+setLocal({
+  solve: (m) => solve(m.sheet, m.settings),
+  compare: (m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress),
+});
 
-function settings() {
-  return { to: Number($("to").value) };
+const app = {
+  good: null,          // { sheet, settings, plotRun, tableRun } of the last good solve
+  seq: 0,              // solve requests issued
+  shownSeq: 0,         // the request whose result is on screen
+  slowModel: false,    // this model's solves go to the worker
+  exampleId: "",
+  embed: false,
+};
+
+// ---- settings
+
+const isFixed = (method) => METHODS.find((m) => m[0] === method)?.[2] === "fixed";
+
+function readSettings() {
+  const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
+  const method = $("method").value;
+  const s = { to: num("to"), method };
+  if (isFixed(method)) s.step = num("step"); else { s.rtol = num("rtol"); s.atol = num("atol"); }
+  const spacing = num("spacing");
+  if (spacing !== undefined) s.spacing = spacing;
+  return s;
 }
 
-function run() {
-  const problem = $("problem");
+/** The settings as kept (all fields, for autosave/links/files). */
+function keptSettings() {
+  const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
+  return { to: num("to"), method: $("method").value, rtol: num("rtol"), atol: num("atol"), step: num("step"), spacing: num("spacing") };
+}
+
+function writeSettings(s) {
+  const text = (v) => (v !== 0 && Math.abs(v) < 1e-3 ? v.toExponential().replace("e+", "e") : String(v));
+  const put = (id, v) => { if (typeof v === "number") $(id).value = text(v); };
+  put("to", s.to);
+  if (s.method && METHODS.some((m) => m[0] === s.method)) $("method").value = s.method;
+  put("rtol", s.rtol);
+  put("atol", s.atol);
+  put("step", s.step);
+  $("spacing").value = typeof s.spacing === "number" ? text(s.spacing) : "";
+  methodChanged();
+}
+
+function methodChanged() {
+  const fixed = isFixed($("method").value);
+  for (const n of document.querySelectorAll(".settings .fixed")) n.hidden = !fixed;
+  for (const n of document.querySelectorAll(".settings .adaptive")) n.hidden = fixed;
+}
+
+function checkSettings(s) {
+  if (!Number.isFinite(s.to)) return "Set the end of the run (a number).";
+  if (isFixed(s.method) && !(s.step > 0)) return "Set the step h (a positive number) for a fixed-step method.";
+  if (!isFixed(s.method) && (!(s.rtol > 0) || !(s.atol > 0))) return "Set rtol and atol (positive numbers).";
+  if (s.spacing !== undefined && !(s.spacing > 0)) return "The output spacing must be a positive number, or blank for every step.";
+  return null;
+}
+
+/** Solver settings for the plotted run and for the table. */
+function runSettings(sheet, s) {
+  const { spacing, ...base } = s;
+  const t0 = sheetStart(sheet);
+  const plot = { ...base, at: grid(t0, s.to, Math.abs(s.to - t0) / PLOT_POINTS) };
+  const table = spacing === undefined ? base : { ...base, at: grid(t0, s.to, spacing) };
+  return { plot, table };
+}
+
+// ---- solving
+
+function hitStepCap(run) {
+  return (run.diagnostics ?? []).some((d) => /max.?steps|step.?cap|step.?limit/i.test(`${d.code} ${d.message}`));
+}
+
+/**
+ * Solve the sheet and show it. `live`: a slider is moving, so only the plot
+ * and summary are refreshed. Returns a promise that settles when shown.
+ */
+async function solveAndShow({ live = false, resetView = false } = {}) {
+  const sheet = $("sheet").value;
+  const s = readSettings();
+  const seq = ++app.seq;
+  const bad = checkSettings(s);
+  if (bad) { showProblem({ message: bad }); return; }
+  const { plot, table } = runSettings(sheet, s);
+  let plotRun, tableRun;
   try {
-    const r = solve(sheet.value, settings());
-    drawTimePlot($("time-plot"), sheet.value, settings());
-    const last = r.t.length - 1;
-    $("summary").textContent = r.states
-      .map((s) => `${s} = ${r.values[s][last].toPrecision(6)} at ${r.independent} = ${r.t[last]}`)
-      .join("; ");
-    problem.hidden = true;
+    if (!app.slowModel || !hasWorker()) {
+      const t = performance.now();
+      plotRun = solve(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined });
+      if (performance.now() - t > 100 || (hasWorker() && hitStepCap(plotRun))) {
+        app.slowModel = true;
+        plotRun = null;
+      }
+    }
+    if (!plotRun) plotRun = await inWorker({ kind: "solve", sheet, settings: plot });
+    if (seq !== app.seq) return;
+    if (!live) {
+      tableRun = app.slowModel ? await inWorker({ kind: "solve", sheet, settings: table }) : solve(sheet, table);
+      if (seq !== app.seq) return;
+    }
   } catch (e) {
-    problem.textContent = e.line ? `Line ${e.line}, column ${e.column}: ${e.message}` : String(e.message ?? e);
-    problem.hidden = false;
+    if (seq !== app.seq || e.cancelled) { if (e.cancelled) notify("Cancelled; the last result stays on screen."); return; }
+    showProblem(e);
+    return;
+  }
+  app.good = { sheet, settings: s, plotRun, tableRun: tableRun ?? app.good?.tableRun, kept: keptSettings() };
+  app.shownSeq = seq;
+  setProblems([]);
+  $("sheet-state").textContent = "";
+  showRun(plotRun, { resetView });
+  showSummary(plotRun, { method: s.method });
+  $("summary").dataset.settings = JSON.stringify(s);
+  document.body.dataset.shownExample = app.exampleId;
+  if (tableRun) showTable(tableRun);
+  const names = [...plotRun.states, ...plotRun.helpers];
+  setCompareQuantities(names);
+  showFieldRun(sheet, s, plotRun);
+  if (!live) {
+    showParams(sheet, paramMoved);
+    clearComparison("The model or settings changed: run the comparison again.");
+    if (!$("accuracy-view").hidden) showAccuracy();
   }
 }
 
-$("run").addEventListener("click", run);
-document.title = `ratebook ${version()}`;
-run();
+function showProblem(e) {
+  const p = { line: e.line, column: e.column, message: String(e.message ?? e) };
+  setProblems([p]);
+  $("sheet-state").textContent = app.good ? "showing the last good result" : "";
+}
+
+let editTimer = 0;
+function edited() {
+  clearTimeout(editTimer);
+  editTimer = setTimeout(() => { app.slowModel = false; solveAndShow(); save(); }, EDIT_DELAY_MS);
+}
+
+function paramMoved(sheet, live) {
+  $("sheet").value = sheet;
+  refreshEditor();
+  solveAndShow({ live });
+  if (!live) save();
+}
+
+// ---- keeping work
+
+function kept() {
+  return { sheet: $("sheet").value, settings: keptSettings() };
+}
+
+function save() {
+  autosave(kept());
+}
+
+function applyKept(k, { keepOld = true } = {}) {
+  const current = kept();
+  if (keepOld && current.sheet.trim() && current.sheet !== k.sheet) {
+    keepPrevious(current);
+    app.previous = current;
+    $("restore-previous").hidden = false;
+  }
+  $("sheet").value = k.sheet;
+  writeSettings(k.settings);
+  refreshEditor();
+  app.slowModel = false;
+  const done = solveAndShow({ resetView: true });
+  save();
+  return done;
+}
+
+function loadExample(id, opts) {
+  const ex = exampleById(id);
+  if (!ex) return null;
+  app.exampleId = id;
+  document.body.dataset.shownExample = "";
+  const caution = $("model-caution");
+  caution.textContent = ex.caution ?? "";
+  caution.hidden = !ex.caution;
+  if (ex.field) setFieldAxes(ex.field);
+  return applyKept({ sheet: ex.sheet, settings: ex.settings }, opts);
+}
+
+function fileBase() {
+  return app.exampleId || "ratebook-model";
+}
+
+async function openLink(hash) {
+  try {
+    const k = await readFragment(hash);
+    if (!k) return false;
+    app.exampleId = "";
+    await applyKept(k);
+    return true;
+  } catch (e) {
+    if (e instanceof KeptModelError) { notify(`This link cannot be opened: ${e.message}.`, { bad: true, sticky: true }); return false; }
+    throw e;
+  }
+}
+
+async function shareLink() {
+  const frag = await shareFragment(kept());
+  const base = location.href.split("#")[0];
+  return { frag, url: `${base}#${frag}` };
+}
+
+function showDialog(title, text, value, { downloadable = false } = {}) {
+  $("dialog-title").textContent = title;
+  $("dialog-text").textContent = text;
+  $("dialog-value").value = value;
+  const a = $("dialog-download");
+  a.hidden = !downloadable;
+  const d = $("dialog");
+  if (typeof d.showModal === "function") d.showModal(); else d.setAttribute("open", "");
+  $("dialog-value").select();
+}
+
+// ---- tabs
+
+const TABS = ["time", "field", "compare", "accuracy"];
+function selectTab(name, focus = false) {
+  for (const t of TABS) {
+    const on = t === name;
+    $(`tab-${t}`).setAttribute("aria-selected", String(on));
+    $(`tab-${t}`).tabIndex = on ? 0 : -1;
+    $(`${t}-view`).hidden = !on;
+  }
+  if (focus) $(`tab-${name}`).focus();
+  if (name === "time") drawTime();
+  if (name === "field") drawField();
+  if (name === "accuracy") showAccuracy();
+}
+
+function showAccuracy() {
+  if (!app.good) return;
+  renderAccuracy($("accuracy-view"), app.good.sheet, app.good.settings, app.good.plotRun);
+}
+
+// ---- the comparison study (in the worker: it solves ten times)
+
+async function runComparison() {
+  if (!app.good) return;
+  const { sheet, settings } = app.good;
+  const h = Number($("compare-h").value);
+  const request = { quantity: $("compare-state").value || undefined, step: h > 0 ? h : undefined };
+  const { spacing, ...base } = settings;
+  try {
+    const rep = await inWorker({ kind: "compare", sheet, settings: base, request }, { label: "Comparing methods…" });
+    showComparison(rep);
+  } catch (e) {
+    if (!e.cancelled) clearComparison(`The comparison failed: ${e.message}`);
+  }
+}
+
+// ---- wiring
+
+function initPage() {
+  document.title = "ratebook";
+  $("version-line").textContent = `ratebook ${version()}`;
+  $("method").replaceChildren(...METHODS.map(([id, name]) => el("option", { value: id }, name)));
+  $("examples").append(...EXAMPLES.map((e) => el("option", { value: e.id }, e.title)));
+  initEditor(edited);
+  initRunner();
+  initTimeView();
+  initFieldView();
+  initCompareView(runComparison);
+  initExports(fileBase);
+
+  $("run").addEventListener("click", () => { app.slowModel = false; solveAndShow(); save(); });
+  for (const id of ["to", "rtol", "atol", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
+  $("method").addEventListener("change", () => { methodChanged(); solveAndShow(); save(); });
+  $("examples").addEventListener("change", () => { const id = $("examples").value; $("examples").value = ""; loadExample(id); });
+  $("csv").addEventListener("click", () => { if (app.good?.tableRun) downloadCsv(app.good.tableRun, fileBase()); });
+
+  $("save-file").addEventListener("click", () => {
+    download(`${fileBase()}.json`, new Blob([fileText(kept(), version())], { type: "application/json" }));
+  });
+  $("open-file").addEventListener("click", () => $("open-input").click());
+  $("open-input").addEventListener("change", async () => {
+    const f = $("open-input").files?.[0];
+    $("open-input").value = "";
+    if (!f) return;
+    if (f.size > 1 << 20) { notify("This file cannot be opened: it is over 1 MB.", { bad: true }); return; }
+    try {
+      app.exampleId = "";
+      await applyKept(readFileText(await f.text()));
+      notify(`Opened ${f.name}.`);
+    } catch (e) {
+      if (e instanceof KeptModelError) notify(`This file cannot be opened: ${e.message}.`, { bad: true, sticky: true });
+      else throw e;
+    }
+  });
+  $("restore-previous").addEventListener("click", () => {
+    const prev = app.previous ?? loadPrevious();
+    if (prev) applyKept(prev);
+  });
+  $("share").addEventListener("click", async () => {
+    const { url } = await shareLink();
+    showDialog("Share link", "This link holds the whole model and its settings; opening it restores them exactly. Nothing is uploaded anywhere.", url);
+  });
+  $("embed").addEventListener("click", async () => {
+    const { frag } = await shareLink();
+    const snippet = `<iframe src="ratebook.html#embed&${frag}" sandbox="allow-scripts" width="900" height="640" title="ratebook model"></iframe>`;
+    if (SINGLE_FILE) {
+      const a = $("dialog-download");
+      a.href = URL.createObjectURL(new Blob([PRISTINE_PAGE], { type: "text/html" }));
+      a.download = "ratebook.html";
+    }
+    showDialog("Embed in a wiki page", SINGLE_FILE
+      ? "Attach the single file (ratebook.html) to the wiki page, then paste this snippet where the model should appear."
+      : "Attach dist/ratebook.html (made by scripts/build) to the wiki page, then paste this snippet.", snippet, { downloadable: SINGLE_FILE });
+  });
+  $("dialog-close").addEventListener("click", () => $("dialog").close?.() ?? $("dialog").removeAttribute("open"));
+  $("dialog-copy").addEventListener("click", async () => {
+    $("dialog-value").select();
+    try { await navigator.clipboard.writeText($("dialog-value").value); notify("Copied."); } catch {
+      notify(document.execCommand?.("copy") ? "Copied." : "Select the text and copy it.");
+    }
+  });
+
+  const tablist = document.querySelector(".tabs");
+  tablist.addEventListener("click", (e) => { const t = e.target.closest("[role=tab]"); if (t) selectTab(t.id.slice(4)); });
+  tablist.addEventListener("keydown", (e) => {
+    const i = TABS.indexOf(document.activeElement?.id?.slice(4));
+    if (i < 0) return;
+    const next = { ArrowRight: i + 1, ArrowLeft: i - 1, Home: 0, End: TABS.length - 1 }[e.key];
+    if (next === undefined) return;
+    e.preventDefault();
+    selectTab(TABS[(next + TABS.length) % TABS.length], true);
+  });
+  window.addEventListener("hashchange", () => { openLink(location.hash); });
+  window.addEventListener("beforeprint", () => { $("sheet-readonly").textContent = $("sheet").value; });
+  if (!canAutosave()) $("sheet-state").textContent = "autosave is off here (no storage in this frame)";
+}
+
+async function startPage() {
+  initPage();
+  const hash = location.hash;
+  app.embed = /(^#|&)embed(&|$)/.test(hash);
+  document.body.classList.toggle("embed", app.embed);
+  let loaded = false;
+  if (/(^#|&)m=/.test(hash)) loaded = await openLink(hash);
+  if (!loaded && !app.embed) {
+    const k = loadAutosave();
+    if (k) { await applyKept(k, { keepOld: false }); loaded = true; }
+  }
+  if (!loaded) await loadExample(EXAMPLES[0].id, { keepOld: false });
+  if (app.embed) readOnly(true);
+  document.body.dataset.ready = "1";
+}
+
+startPage();

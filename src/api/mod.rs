@@ -3,6 +3,9 @@
 //! The web layer only converts these to and from JS values; everything here
 //! runs natively, so the API's behaviour is tested with `cargo test`.
 
+pub mod compare;
+pub mod field;
+
 use serde::ser::SerializeMap;
 use serde::{Deserialize, Serialize, Serializer};
 

@@ -1,20 +1,16 @@
 //! Plots, drawn once for any plotters backend: the canvas in the page, SVG
 //! natively (for exports and tests).
+//!
+//! Every view of the page describes what it wants as a [`Figure`] (lines,
+//! marks, event rules, a direction field) and [`figure`] draws it. The same
+//! figure drawn on the SVG backend is the SVG download, so the two always
+//! agree.
 
 use plotters::coord::Shift;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::prelude::*;
 
 pub mod study;
-
-/// One curve of a plot.
-pub struct Curve<'a> {
-    /// Legend label.
-    pub label: &'a str,
-    /// Abscissae.
-    pub x: &'a [f64],
-    /// Ordinates (same length as `x`).
-    pub y: &'a [f64],
-}
 
 /// Why a plot could not be drawn.
 #[derive(Debug)]
@@ -36,7 +32,22 @@ pub const PALETTE: [RGBColor; 6] = [
     RGBColor(0x4a, 0x4a, 0x4a),
 ];
 
-/// The range of finite values in `v`, widened when it is a single point.
+/// Ink for reference curves, rules and labels.
+const INK: RGBColor = RGBColor(0x1b, 0x1f, 0x24);
+/// Ink for direction-field segments.
+const FIELD_INK: RGBColor = RGBColor(0x8a, 0x94, 0x9e);
+
+/// The colour for a palette index; negative means the ink colour.
+pub fn colour(index: i32) -> RGBColor {
+    if index < 0 {
+        INK
+    } else {
+        PALETTE[index as usize % PALETTE.len()]
+    }
+}
+
+/// The range of finite values in `v`, padded a little, and widened when it is
+/// a single point.
 pub fn finite_range<'a>(v: impl IntoIterator<Item = &'a f64>) -> (f64, f64) {
     let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
     for &x in v {
@@ -48,7 +59,7 @@ pub fn finite_range<'a>(v: impl IntoIterator<Item = &'a f64>) -> (f64, f64) {
     if !lo.is_finite() {
         return (0.0, 1.0);
     }
-    if hi - lo <= f64::EPSILON * hi.abs().max(1.0) {
+    if hi - lo <= f64::EPSILON * hi.abs().max(1.0) * 16.0 {
         let pad = hi.abs().max(1.0) * 0.05;
         return (lo - pad, hi + pad);
     }
@@ -56,53 +67,560 @@ pub fn finite_range<'a>(v: impl IntoIterator<Item = &'a f64>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
-/// Curves against the independent variable, with axis labels.
-pub fn time_plot<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    x_label: &str,
-    curves: &[Curve],
-) -> Result<(), DrawError>
+/// One polyline of a figure.
+#[derive(Clone, Debug, Default)]
+pub struct Line {
+    /// Legend label; empty for none.
+    pub label: String,
+    /// Abscissae.
+    pub x: Vec<f64>,
+    /// Ordinates (same length as `x`; non-finite values break the line).
+    pub y: Vec<f64>,
+    /// Palette index, or negative for ink.
+    pub colour: i32,
+    /// Stroke width in pixels.
+    pub width: u32,
+    /// Drawn dashed.
+    pub dashed: bool,
+    /// Each point also gets a dot (for sparse data such as error-vs-h).
+    pub dots: bool,
+}
+
+/// The shape of a [`Mark`].
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MarkShape {
+    /// A filled dot (an event crossing, a start point).
+    Dot,
+    /// An upward triangle (a peak).
+    Peak,
+    /// A downward triangle (a trough).
+    Trough,
+}
+
+/// A labelled point of a figure.
+#[derive(Clone, Debug)]
+pub struct Mark {
+    /// Abscissa.
+    pub x: f64,
+    /// Ordinate.
+    pub y: f64,
+    /// Text beside the mark; empty for none.
+    pub label: String,
+    /// Shape.
+    pub shape: MarkShape,
+    /// Palette index, or negative for ink.
+    pub colour: i32,
+}
+
+/// A vertical rule across the plot (an event time), labelled at the top.
+#[derive(Clone, Debug)]
+pub struct Rule {
+    /// Where, on the x axis.
+    pub x: f64,
+    /// Text at the top of the rule.
+    pub label: String,
+}
+
+/// Everything one plot shows. Ranges absent are fitted to the data.
+#[derive(Clone, Debug, Default)]
+pub struct Figure {
+    /// The x axis's label.
+    pub x_label: String,
+    /// The y axis's label.
+    pub y_label: String,
+    /// Shown x range, in data units (before any log transform).
+    pub x_range: Option<(f64, f64)>,
+    /// Shown y range, in data units (before any log transform).
+    pub y_range: Option<(f64, f64)>,
+    /// Logarithmic x axis (base 10; non-positive values are dropped).
+    pub log_x: bool,
+    /// Logarithmic y axis.
+    pub log_y: bool,
+    /// Polylines.
+    pub lines: Vec<Line>,
+    /// Labelled points.
+    pub marks: Vec<Mark>,
+    /// Vertical rules.
+    pub rules: Vec<Rule>,
+    /// A direction field: `(x, y, dx, dy)` per sample, drawn as short
+    /// segments of equal length on screen through each sample.
+    pub field: Vec<[f64; 4]>,
+    /// Field segments get arrow heads (phase plane) rather than none (slope field).
+    pub arrows: bool,
+}
+
+/// Where a figure landed on its backend, so that the page can map pointer
+/// positions back to data: the plotting area in backend pixels and the data
+/// range it shows (log10 units on a log axis).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Frame {
+    /// Left edge of the plotting area, pixels.
+    pub left: f64,
+    /// Top edge.
+    pub top: f64,
+    /// Right edge.
+    pub right: f64,
+    /// Bottom edge.
+    pub bottom: f64,
+    /// Data x at the left edge.
+    pub x0: f64,
+    /// Data x at the right edge.
+    pub x1: f64,
+    /// Data y at the bottom edge.
+    pub y0: f64,
+    /// Data y at the top edge.
+    pub y1: f64,
+}
+
+impl Frame {
+    /// The frame as `[left, top, right, bottom, x0, x1, y0, y1]`.
+    pub fn to_array(self) -> [f64; 8] {
+        [self.left, self.top, self.right, self.bottom, self.x0, self.x1, self.y0, self.y1]
+    }
+}
+
+/// A value on an axis: log10 on a log axis (NaN for non-positive values).
+fn axis_value(v: f64, log: bool) -> f64 {
+    if !log {
+        v
+    } else if v > 0.0 {
+        v.log10()
+    } else {
+        f64::NAN
+    }
+}
+
+/// A tick label: short, with an exponent only where needed.
+pub fn tick_label(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return if v == 0.0 { "0".into() } else { format!("{v}") };
+    }
+    let a = v.abs();
+    if !(1e-3..1e5).contains(&a) {
+        let s = format!("{v:.2e}");
+        // 1.00e3 -> 1e3, 2.50e-4 -> 2.5e-4
+        let (m, e) = s.split_once('e').unwrap_or((&s, "0"));
+        let m = m.trim_end_matches('0').trim_end_matches('.');
+        return format!("{m}e{e}");
+    }
+    let s = format!("{:.4}", v);
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" {
+        "0".into()
+    } else {
+        s.to_string()
+    }
+}
+
+fn log_tick_label(v: f64) -> String {
+    tick_label(10f64.powf(v))
+}
+
+/// Split a polyline into runs of segments clipped to the box (Liang–Barsky
+/// per segment). Non-finite points break the line.
+pub fn clip_polyline(
+    pts: impl IntoIterator<Item = (f64, f64)>,
+    (x0, x1): (f64, f64),
+    (y0, y1): (f64, f64),
+) -> Vec<Vec<(f64, f64)>> {
+    let mut runs: Vec<Vec<(f64, f64)>> = Vec::new();
+    let mut current: Vec<(f64, f64)> = Vec::new();
+    let mut prev: Option<(f64, f64)> = None;
+    let flush = |current: &mut Vec<(f64, f64)>, runs: &mut Vec<Vec<(f64, f64)>>| {
+        if current.len() >= 2 {
+            runs.push(std::mem::take(current));
+        } else {
+            current.clear();
+        }
+    };
+    for p in pts {
+        if !(p.0.is_finite() && p.1.is_finite()) {
+            flush(&mut current, &mut runs);
+            prev = None;
+            continue;
+        }
+        if let Some(a) = prev {
+            match clip_segment(a, p, (x0, x1), (y0, y1)) {
+                Some((s, e, starts_inside, ends_inside)) => {
+                    if !starts_inside || current.is_empty() {
+                        flush(&mut current, &mut runs);
+                        current.push(s);
+                    }
+                    current.push(e);
+                    if !ends_inside {
+                        flush(&mut current, &mut runs);
+                    }
+                }
+                None => flush(&mut current, &mut runs),
+            }
+        } else if inside(p, (x0, x1), (y0, y1)) {
+            // a lone first point; the segment to the next point starts it
+        }
+        prev = Some(p);
+    }
+    flush(&mut current, &mut runs);
+    runs
+}
+
+fn inside(p: (f64, f64), (x0, x1): (f64, f64), (y0, y1): (f64, f64)) -> bool {
+    p.0 >= x0 && p.0 <= x1 && p.1 >= y0 && p.1 <= y1
+}
+
+/// Clip segment a–b to the box. Returns the clipped ends and whether each end
+/// is the original point.
+fn clip_segment(
+    a: (f64, f64),
+    b: (f64, f64),
+    (x0, x1): (f64, f64),
+    (y0, y1): (f64, f64),
+) -> Option<((f64, f64), (f64, f64), bool, bool)> {
+    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for (p, q) in [(-dx, a.0 - x0), (dx, x1 - a.0), (-dy, a.1 - y0), (dy, y1 - a.1)] {
+        if p == 0.0 {
+            if q < 0.0 {
+                return None;
+            }
+        } else {
+            let r = q / p;
+            if p < 0.0 {
+                t0 = t0.max(r);
+            } else {
+                t1 = t1.min(r);
+            }
+        }
+    }
+    if t0 > t1 {
+        return None;
+    }
+    let at = |t: f64| (a.0 + t * dx, a.1 + t * dy);
+    Some((if t0 == 0.0 { a } else { at(t0) }, if t1 == 1.0 { b } else { at(t1) }, t0 == 0.0, t1 == 1.0))
+}
+
+/// The shown range on one axis: the figure's own, else fitted to the data.
+fn shown_range<'a>(given: Option<(f64, f64)>, log: bool, data: impl Iterator<Item = &'a f64>) -> (f64, f64) {
+    let fitted = || {
+        let v: Vec<f64> = data.map(|&v| axis_value(v, log)).collect();
+        finite_range(v.iter())
+    };
+    match given {
+        Some((a, b)) => {
+            let (a, b) = (axis_value(a, log), axis_value(b, log));
+            if a.is_finite() && b.is_finite() && b > a {
+                (a, b)
+            } else {
+                fitted()
+            }
+        }
+        None => fitted(),
+    }
+}
+
+/// Draw `fig` on `root`, filling it. Returns where the plotting area landed.
+pub fn figure<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, fig: &Figure) -> Result<Frame, DrawError>
 where
     DB::ErrorType: 'static,
 {
     root.fill(&WHITE)?;
-    let (x0, x1) = finite_range(curves.iter().flat_map(|c| c.x.iter()));
-    let (y0, y1) = finite_range(curves.iter().flat_map(|c| c.y.iter()));
+    let xs = fig
+        .lines
+        .iter()
+        .flat_map(|l| l.x.iter())
+        .chain(fig.marks.iter().map(|m| &m.x))
+        .chain(fig.field.iter().map(|f| &f[0]));
+    let (x0, x1) = shown_range(fig.x_range, fig.log_x, xs);
+    let ys = fig
+        .lines
+        .iter()
+        .flat_map(|l| l.y.iter())
+        .chain(fig.marks.iter().map(|m| &m.y))
+        .chain(fig.field.iter().map(|f| &f[1]));
+    let (y0, y1) = shown_range(fig.y_range, fig.log_y, ys);
     let mut chart = ChartBuilder::on(root)
         .margin(12)
-        .x_label_area_size(36)
-        .y_label_area_size(56)
+        .margin_top(if fig.rules.is_empty() { 12 } else { 22 })
+        .x_label_area_size(40)
+        .y_label_area_size(64)
         .build_cartesian_2d(x0..x1, y0..y1)?;
-    chart.configure_mesh().x_desc(x_label).light_line_style(RGBColor(0xee, 0xee, 0xee)).draw()?;
-    for (i, c) in curves.iter().enumerate() {
-        let color = PALETTE[i % PALETTE.len()];
-        let pts = c.x.iter().zip(c.y).filter(|(x, y)| x.is_finite() && y.is_finite()).map(|(&x, &y)| (x, y));
-        chart
-            .draw_series(LineSeries::new(pts, color.stroke_width(2)))?
-            .label(c.label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 16, y)], color.stroke_width(2)));
+    let x_fmt = if fig.log_x { log_tick_label } else { tick_label };
+    let y_fmt = if fig.log_y { log_tick_label } else { tick_label };
+    let x_fmt = move |v: &f64| x_fmt(*v);
+    let y_fmt = move |v: &f64| y_fmt(*v);
+    chart
+        .configure_mesh()
+        .x_desc(fig.x_label.as_str())
+        .y_desc(fig.y_label.as_str())
+        .x_label_formatter(&x_fmt)
+        .y_label_formatter(&y_fmt)
+        .x_labels(8)
+        .y_labels(7)
+        .axis_desc_style(("sans-serif", 15).into_font().color(&INK))
+        .label_style(("sans-serif", 12).into_font().color(&INK))
+        .light_line_style(RGBColor(0xee, 0xee, 0xee))
+        .bold_line_style(RGBColor(0xd8, 0xd8, 0xd8))
+        .draw()?;
+
+    let (px, py) = chart.plotting_area().get_pixel_range();
+    let frame = Frame {
+        left: px.start as f64,
+        top: py.start as f64,
+        right: px.end as f64,
+        bottom: py.end as f64,
+        x0,
+        x1,
+        y0,
+        y1,
+    };
+
+    draw_field(root, fig, &frame)?;
+
+    for l in &fig.lines {
+        let c = colour(l.colour);
+        let style = c.stroke_width(l.width.max(1));
+        let pts = l.x.iter().zip(&l.y).map(|(&x, &y)| (axis_value(x, fig.log_x), axis_value(y, fig.log_y)));
+        let runs = clip_polyline(pts.clone(), (x0, x1), (y0, y1));
+        for (k, run) in runs.into_iter().enumerate() {
+            let anno = if l.dashed {
+                chart.draw_series(DashedLineSeries::new(run, 6, 4, style))?
+            } else {
+                chart.draw_series(LineSeries::new(run, style))?
+            };
+            if k == 0 && !l.label.is_empty() {
+                let dashed = l.dashed;
+                anno.label(l.label.as_str()).legend(move |(x, y)| {
+                    let end = if dashed { x + 8 } else { x + 18 };
+                    PathElement::new(vec![(x, y), (end, y)], style)
+                });
+            }
+        }
+        if l.dots {
+            let inside_pts: Vec<(f64, f64)> = pts
+                .filter(|&(x, y)| x.is_finite() && y.is_finite() && inside((x, y), (x0, x1), (y0, y1)))
+                .collect();
+            chart.draw_series(inside_pts.into_iter().map(|p| Circle::new(p, 3, c.filled())))?;
+        }
     }
-    if curves.len() > 1 || curves.iter().any(|c| !c.label.is_empty()) {
-        chart.configure_series_labels().background_style(WHITE.mix(0.85)).border_style(BLACK).draw()?;
+
+    for r in &fig.rules {
+        let x = axis_value(r.x, fig.log_x);
+        if !(x.is_finite() && x >= x0 && x <= x1) {
+            continue;
+        }
+        chart.draw_series(DashedLineSeries::new(
+            vec![(x, y0), (x, y1)],
+            4,
+            4,
+            RGBColor(0x7a, 0x30, 0x20).stroke_width(1),
+        ))?;
+        let (bx, by) = chart.backend_coord(&(x, y1));
+        // Labels near the right edge go to the left of their rule.
+        let right = (bx as f64) > frame.left + 0.75 * (frame.right - frame.left);
+        let style = ("sans-serif", 12).into_font().color(&RGBColor(0x7a, 0x30, 0x20));
+        let style = if right { style.pos(Pos::new(HPos::Right, VPos::Top)) } else { style };
+        root.draw(&Text::new(r.label.clone(), (if right { bx - 3 } else { bx + 3 }, by - 16), style))?;
+    }
+
+    for m in &fig.marks {
+        let p = (axis_value(m.x, fig.log_x), axis_value(m.y, fig.log_y));
+        if !(p.0.is_finite() && p.1.is_finite() && inside(p, (x0, x1), (y0, y1))) {
+            continue;
+        }
+        let c = colour(m.colour);
+        let (bx, by) = chart.backend_coord(&p);
+        match m.shape {
+            MarkShape::Dot => root.draw(&Circle::new((bx, by), 4, c.filled()))?,
+            MarkShape::Peak => root.draw(&Polygon::new(vec![(bx, by - 6), (bx - 5, by + 3), (bx + 5, by + 3)], c.filled()))?,
+            MarkShape::Trough => {
+                root.draw(&Polygon::new(vec![(bx, by + 6), (bx - 5, by - 3), (bx + 5, by - 3)], c.filled()))?
+            }
+        }
+        if !m.label.is_empty() {
+            let dy = if m.shape == MarkShape::Trough { 6 } else { -18 };
+            let right = (bx as f64) > frame.left + 0.8 * (frame.right - frame.left);
+            let style = ("sans-serif", 12).into_font().color(&INK);
+            let style = if right { style.pos(Pos::new(HPos::Right, VPos::Top)) } else { style };
+            root.draw(&Text::new(m.label.clone(), (if right { bx - 6 } else { bx + 6 }, by + dy), style))?;
+        }
+    }
+
+    if fig.lines.iter().any(|l| !l.label.is_empty()) {
+        chart
+            .configure_series_labels()
+            .position(SeriesLabelPosition::UpperRight)
+            .label_font(("sans-serif", 12).into_font().color(&INK))
+            .background_style(WHITE.mix(0.85))
+            .border_style(RGBColor(0xb0, 0xb0, 0xb0))
+            .draw()?;
     }
     root.present()?;
+    Ok(frame)
+}
+
+/// Field samples as equal-length segments on screen, centred on each sample,
+/// with arrow heads when the figure asks for them.
+fn draw_field<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, fig: &Figure, frame: &Frame) -> Result<(), DrawError>
+where
+    DB::ErrorType: 'static,
+{
+    if fig.field.is_empty() {
+        return Ok(());
+    }
+    let w = frame.right - frame.left;
+    let h = frame.bottom - frame.top;
+    let sx = w / (frame.x1 - frame.x0);
+    let sy = h / (frame.y1 - frame.y0);
+    // Segment length: a little under the sample spacing.
+    let n = (fig.field.len() as f64).sqrt().max(1.0);
+    let len = (w.min(h) / n * 0.7).clamp(4.0, 30.0);
+    let style = FIELD_INK.stroke_width(1);
+    for s in &fig.field {
+        let (x, y) = (axis_value(s[0], fig.log_x), axis_value(s[1], fig.log_y));
+        if !(x.is_finite() && y.is_finite() && inside((x, y), (frame.x0, frame.x1), (frame.y0, frame.y1))) {
+            continue;
+        }
+        let (ux, uy) = (s[2] * sx, -s[3] * sy);
+        let norm = ux.hypot(uy);
+        if !norm.is_finite() {
+            continue;
+        }
+        let cx = frame.left + (x - frame.x0) * sx;
+        let cy = frame.bottom - (y - frame.y0) * sy;
+        if norm == 0.0 {
+            root.draw(&Circle::new((cx as i32, cy as i32), 1, style.filled()))?;
+            continue;
+        }
+        let (dx, dy) = (ux / norm * len / 2.0, uy / norm * len / 2.0);
+        let a = ((cx - dx).round() as i32, (cy - dy).round() as i32);
+        let b = ((cx + dx).round() as i32, (cy + dy).round() as i32);
+        root.draw(&PathElement::new(vec![a, b], style))?;
+        if fig.arrows {
+            // Two barbs at the head, 25° off the shaft.
+            let (hx, hy) = (-dx / (len / 2.0) * len * 0.35, -dy / (len / 2.0) * len * 0.35);
+            let (c, sn) = (0.906f64, 0.423f64);
+            let l = ((cx + dx + hx * c - hy * sn).round() as i32, (cy + dy + hx * sn + hy * c).round() as i32);
+            let r = ((cx + dx + hx * c + hy * sn).round() as i32, (cy + dy - hx * sn + hy * c).round() as i32);
+            root.draw(&PathElement::new(vec![l, b, r], style))?;
+        }
+    }
     Ok(())
+}
+
+/// Draw `fig` as an SVG document of `width` × `height` pixels.
+pub fn figure_svg(fig: &Figure, width: u32, height: u32) -> Result<String, DrawError> {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (width, height)).into_drawing_area();
+        figure(&root, fig)?;
+    }
+    Ok(svg)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    #[test]
-    fn svg_time_plot_has_the_curve() {
+    fn decay() -> Figure {
         let x: Vec<f64> = (0..50).map(|i| i as f64 * 0.1).collect();
         let y: Vec<f64> = x.iter().map(|t| (-t).exp()).collect();
-        let mut svg = String::new();
-        {
-            let root = SVGBackend::with_string(&mut svg, (400, 300)).into_drawing_area();
-            time_plot(&root, "t", &[Curve { label: "y", x: &x, y: &y }]).unwrap();
+        Figure {
+            x_label: "t".into(),
+            y_label: "level".into(),
+            lines: vec![Line { label: "h".into(), x, y, colour: 0, width: 2, ..Default::default() }],
+            ..Default::default()
         }
+    }
+
+    #[test]
+    fn svg_has_the_curve_labels_and_legend() {
+        let svg = figure_svg(&decay(), 400, 300).unwrap();
         assert!(svg.contains("<polyline"), "no curve in {svg}");
-        assert!(svg.contains("<text") && svg.lines().any(|l| l.trim() == "t"), "no axis label");
+        assert!(svg.lines().any(|l| l.trim() == "t"), "no x label");
+        assert!(svg.lines().any(|l| l.trim() == "level"), "no y label");
+        assert!(svg.lines().any(|l| l.trim() == "h"), "no legend entry");
+        assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    }
+
+    #[test]
+    fn frame_maps_the_plotting_area_to_the_data_range() {
+        let mut fig = decay();
+        fig.x_range = Some((1.0, 3.0));
+        fig.y_range = Some((0.0, 0.5));
+        let mut svg = String::new();
+        let frame = {
+            let root = SVGBackend::with_string(&mut svg, (400, 300)).into_drawing_area();
+            figure(&root, &fig).unwrap()
+        };
+        assert_eq!((frame.x0, frame.x1, frame.y0, frame.y1), (1.0, 3.0, 0.0, 0.5));
+        assert!(frame.left > 40.0 && frame.right <= 400.0 && frame.top < frame.bottom && frame.bottom < 300.0);
+    }
+
+    #[test]
+    fn zoomed_curves_are_clipped_not_pinned_to_the_border() {
+        // A line from (0,0) to (10,10) shown in [2,4]x[2,4] must enter at (2,2)
+        // and leave at (4,4).
+        let runs = clip_polyline([(0.0, 0.0), (10.0, 10.0)], (2.0, 4.0), (2.0, 4.0));
+        assert_eq!(runs, vec![vec![(2.0, 2.0), (4.0, 4.0)]]);
+        // Leaving and re-entering makes two runs; NaN breaks a run.
+        let runs = clip_polyline([(0.0, 0.0), (1.0, 5.0), (2.0, 0.0), (3.0, f64::NAN), (4.0, 0.0), (4.5, 0.5)], (0.0, 5.0), (0.0, 1.0));
+        assert_eq!(runs.len(), 3, "{runs:?}");
+        assert_eq!(runs[2], vec![(4.0, 0.0), (4.5, 0.5)]);
+        // Entirely outside: nothing.
+        assert!(clip_polyline([(5.0, 5.0), (6.0, 6.0)], (0.0, 1.0), (0.0, 1.0)).is_empty());
+    }
+
+    #[test]
+    fn field_segments_rules_and_marks_are_drawn() {
+        let mut fig = Figure { x_label: "x".into(), y_label: "v".into(), arrows: true, ..Default::default() };
+        for i in 0..10 {
+            for j in 0..10 {
+                let (x, y) = (i as f64 - 4.5, j as f64 - 4.5);
+                fig.field.push([x, y, y, -x]);
+            }
+        }
+        fig.rules.push(Rule { x: 0.0, label: "x = 0".into() });
+        fig.marks.push(Mark { x: 1.0, y: 1.0, label: "peak 1".into(), shape: MarkShape::Peak, colour: 1 });
+        let svg = figure_svg(&fig, 500, 400).unwrap();
+        // 100 shafts + 100 heads, plus the mesh lines.
+        assert!(svg.matches("<polyline").count() >= 200, "field not drawn");
+        assert!(svg.contains("x = 0") && svg.contains("peak 1"));
+        assert!(svg.contains("<polygon"), "no peak mark");
+    }
+
+    #[test]
+    fn log_axes_drop_non_positive_values_and_label_in_data_units() {
+        let fig = Figure {
+            x_label: "h".into(),
+            y_label: "error".into(),
+            log_x: true,
+            log_y: true,
+            lines: vec![Line {
+                label: "Euler".into(),
+                x: vec![0.1, 0.05, 0.025, 0.0],
+                y: vec![1e-2, 5e-3, 2.5e-3, -1.0],
+                colour: 0,
+                width: 2,
+                dots: true,
+                ..Default::default()
+            }],
+            ..Default::default()
+        };
+        let mut svg = String::new();
+        let frame = {
+            let root = SVGBackend::with_string(&mut svg, (400, 300)).into_drawing_area();
+            figure(&root, &fig).unwrap()
+        };
+        assert!(frame.x0 < 0.1f64.log10() && frame.x1 > 0.025f64.log10());
+        assert!(svg.contains("<circle"), "no dots");
+        assert!(!svg.contains("NaN"));
+    }
+
+    #[test]
+    fn tick_labels_are_short() {
+        assert_eq!(tick_label(1200.0), "1200");
+        assert_eq!(tick_label(0.25), "0.25");
+        assert_eq!(tick_label(1e-5), "1e-5");
+        assert_eq!(tick_label(2.5e7), "2.5e7");
+        assert_eq!(tick_label(-0.00001), "-1e-5");
+        assert_eq!(tick_label(0.0), "0");
     }
 }

@@ -3,7 +3,7 @@
 
 use wasm_bindgen::prelude::*;
 
-use crate::api;
+use crate::{api, draw};
 
 #[cfg(feature = "bench")]
 mod bench_emit;
@@ -58,16 +58,131 @@ pub fn solve(sheet: &str, settings: JsValue) -> Result<JsValue, JsValue> {
     to_js(&run)
 }
 
-/// Solve `sheet` and draw its states against the independent variable on `canvas`.
-#[wasm_bindgen(js_name = drawTimePlot)]
-pub fn draw_time_plot(canvas: web_sys::HtmlCanvasElement, sheet: &str, settings: JsValue) -> Result<(), JsValue> {
-    use plotters::prelude::IntoDrawingArea;
-    let req: api::RunRequest = serde_wasm_bindgen::from_value(settings).map_err(|e| error_with(&e.to_string(), &[]))?;
-    let run = api::solve(sheet, &req).map_err(api_error)?;
-    let curves: Vec<crate::draw::Curve> =
-        run.values.0.iter().map(|(name, y)| crate::draw::Curve { label: name, x: &run.t, y }).collect();
-    let backend = plotters_canvas::CanvasBackend::with_canvas_object(canvas)
-        .ok_or_else(|| error_with("no 2D context on this canvas", &[]))?;
-    crate::draw::time_plot(&backend.into_drawing_area(), &run.independent, &curves)
-        .map_err(|e| error_with(&e.0, &[]))
+fn request<T: serde::de::DeserializeOwned + Default>(v: JsValue, what: &str) -> Result<T, JsValue> {
+    if v.is_undefined() || v.is_null() {
+        Ok(T::default())
+    } else {
+        serde_wasm_bindgen::from_value(v).map_err(|e| error_with(&format!("{what}: {e}"), &[]))
+    }
+}
+
+/// Compare fixed-step methods at h, h/2, h/4, … with an adaptive reference
+/// (see `api::compare`). `progress(done, total)` is called after each run
+/// when it is a function.
+#[wasm_bindgen(js_name = compareMethods)]
+pub fn compare_methods(sheet: &str, settings: JsValue, request_: JsValue, progress: JsValue) -> Result<JsValue, JsValue> {
+    let base: api::RunRequest = request(settings, "settings")?;
+    let req: api::compare::CompareRequest = request(request_, "comparison")?;
+    let callback = progress.dyn_into::<js_sys::Function>().ok();
+    let mut report = |done: usize, total: usize| {
+        if let Some(f) = &callback {
+            let _ = f.call2(&JsValue::NULL, &JsValue::from(done as u32), &JsValue::from(total as u32));
+        }
+    };
+    let rep = api::compare::compare(sheet, &base, &req, &mut report).map_err(api_error)?;
+    to_js(&rep)
+}
+
+/// The field view's numbers for `sheet` (see `api::field`): the slope field
+/// or phase plane, nullclines, and curves through the requested starts.
+#[wasm_bindgen(js_name = fieldView)]
+pub fn field_view(sheet: &str, settings: JsValue, request_: JsValue) -> Result<JsValue, JsValue> {
+    let base: api::RunRequest = request(settings, "settings")?;
+    let req: api::field::FieldRequest = request(request_, "field view")?;
+    let rep = api::field::field_view(sheet, &base, &req).map_err(api_error)?;
+    to_js(&rep)
+}
+
+/// The solver's methods, in registry order: `[{ id, name, order, adaptive, implicit, summary, … }]`.
+#[wasm_bindgen]
+pub fn methods() -> Result<JsValue, JsValue> {
+    to_js(&crate::solve::methods())
+}
+
+/// A plot being described from JS, then drawn on a canvas or as SVG. Each
+/// view of the page builds one per redraw and frees it.
+#[wasm_bindgen]
+pub struct Plot {
+    fig: draw::Figure,
+}
+
+fn mark_shape(code: u8) -> draw::MarkShape {
+    match code {
+        1 => draw::MarkShape::Peak,
+        2 => draw::MarkShape::Trough,
+        _ => draw::MarkShape::Dot,
+    }
+}
+
+#[wasm_bindgen]
+impl Plot {
+    /// An empty plot with its axis labels.
+    #[wasm_bindgen(constructor)]
+    pub fn new(x_label: &str, y_label: &str) -> Plot {
+        Plot { fig: draw::Figure { x_label: x_label.into(), y_label: y_label.into(), ..Default::default() } }
+    }
+
+    /// Show exactly this window (data units); otherwise it is fitted to the data.
+    pub fn window(&mut self, x0: f64, x1: f64, y0: f64, y1: f64) {
+        self.fig.x_range = Some((x0, x1));
+        self.fig.y_range = Some((y0, y1));
+    }
+
+    /// Show this x range; y is fitted to the data.
+    #[wasm_bindgen(js_name = xWindow)]
+    pub fn x_window(&mut self, x0: f64, x1: f64) {
+        self.fig.x_range = Some((x0, x1));
+    }
+
+    /// Logarithmic axes.
+    pub fn log(&mut self, x: bool, y: bool) {
+        self.fig.log_x = x;
+        self.fig.log_y = y;
+    }
+
+    /// Add a polyline. `colour` is a palette index (negative for ink).
+    #[allow(clippy::too_many_arguments)]
+    pub fn line(&mut self, label: &str, x: &[f64], y: &[f64], colour: i32, width: u32, dashed: bool, dots: bool) {
+        let n = x.len().min(y.len());
+        self.fig.lines.push(draw::Line {
+            label: label.into(),
+            x: x[..n].to_vec(),
+            y: y[..n].to_vec(),
+            colour,
+            width,
+            dashed,
+            dots,
+        });
+    }
+
+    /// Add a labelled point: `shape` 0 dot, 1 peak, 2 trough.
+    pub fn mark(&mut self, x: f64, y: f64, label: &str, shape: u8, colour: i32) {
+        self.fig.marks.push(draw::Mark { x, y, label: label.into(), shape: mark_shape(shape), colour });
+    }
+
+    /// Add a vertical rule with a label at its top (an event time).
+    pub fn rule(&mut self, x: f64, label: &str) {
+        self.fig.rules.push(draw::Rule { x, label: label.into() });
+    }
+
+    /// Set the direction field: flat `[x, y, dx, dy, ...]`, with arrow heads or not.
+    pub fn field(&mut self, samples: &[f64], arrows: bool) {
+        self.fig.field = samples.chunks_exact(4).map(|c| [c[0], c[1], c[2], c[3]]).collect();
+        self.fig.arrows = arrows;
+    }
+
+    /// Draw on `canvas` at its pixel size. Returns the frame
+    /// `[left, top, right, bottom, x0, x1, y0, y1]` (log10 units on log axes).
+    pub fn draw(&self, canvas: web_sys::HtmlCanvasElement) -> Result<Vec<f64>, JsValue> {
+        use plotters::prelude::IntoDrawingArea;
+        let backend = plotters_canvas::CanvasBackend::with_canvas_object(canvas)
+            .ok_or_else(|| error_with("no 2D context on this canvas", &[]))?;
+        let frame = draw::figure(&backend.into_drawing_area(), &self.fig).map_err(|e| error_with(&e.0, &[]))?;
+        Ok(frame.to_array().to_vec())
+    }
+
+    /// The same plot as an SVG document of `width` × `height` pixels.
+    pub fn svg(&self, width: u32, height: u32) -> Result<String, JsValue> {
+        draw::figure_svg(&self.fig, width, height).map_err(|e| error_with(&e.0, &[]))
+    }
 }

@@ -1,0 +1,269 @@
+//! The method comparison behind the page's comparison view: one quantity of a
+//! sheet solved by several fixed-step methods at h, h/2, h/4, … beside an
+//! adaptive reference, with each run's end value, its difference from the
+//! reference, and the observed order fitted on a log-log plot of error
+//! against h.
+//!
+//! Everything goes through [`super::solve`], so the comparison sees exactly
+//! what a user of the JS API sees.
+
+use serde::{Deserialize, Serialize};
+
+use super::{solve, ApiError, RunReport, RunRequest};
+use crate::solve::SolveError;
+
+/// A request setting out of range, as the API reports it.
+pub(super) fn invalid(field: &'static str, reason: impl Into<String>) -> ApiError {
+    ApiError::Settings(SolveError::InvalidSettings { field, reason: reason.into() })
+}
+
+/// What to compare.
+#[derive(Clone, Debug, Deserialize)]
+#[serde(rename_all = "camelCase", default)]
+pub struct CompareRequest {
+    /// The quantity (state or helper) to overlay and tabulate; the first state when absent.
+    pub quantity: Option<String>,
+    /// Fixed-step method ids (default Euler, Heun, RK4).
+    pub methods: Vec<String>,
+    /// The largest step; the others are h/2, h/4, … Default: a 40th of the span.
+    pub step: Option<f64>,
+    /// How many step sizes (default 3: h, h/2, h/4; 2 to 8).
+    pub levels: usize,
+    /// Tolerance of the adaptive reference (rtol; atol is 1e-3 of it). Default 1e-11.
+    pub reference_rtol: f64,
+}
+
+impl Default for CompareRequest {
+    fn default() -> Self {
+        CompareRequest {
+            quantity: None,
+            methods: vec!["euler".into(), "heun".into(), "rk4".into()],
+            step: None,
+            levels: 3,
+            reference_rtol: 1e-11,
+        }
+    }
+}
+
+/// One run of the comparison.
+#[derive(Clone, Debug, Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct CompareRun {
+    /// Method id.
+    pub method: String,
+    /// Step size; `None` for the adaptive reference.
+    pub step: Option<f64>,
+    /// Output times.
+    pub t: Vec<f64>,
+    /// The quantity at `t`.
+    pub y: Vec<f64>,
+    /// The run's last time.
+    pub end_t: f64,
+    /// The quantity at the end.
+    pub end: f64,
+    /// `end` minus the reference's end value (0 for the reference).
+    pub difference: f64,
+    /// Right-hand-side evaluations.
+    pub rhs_evals: u64,
+    /// The run's status (`finished`, `stopped`, `failed`).
+    pub status: String,
+}
+
+/// A method's observed order: the least-squares slope of log|error| against log h.
+#[derive(Clone, Debug, Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct OrderFit {
+    /// Method id.
+    pub method: String,
+    /// The step sizes used in the fit.
+    pub steps: Vec<f64>,
+    /// |difference from the reference| at the end, for each step.
+    pub errors: Vec<f64>,
+    /// The fitted slope; `None` when fewer than two errors were non-zero and finite.
+    pub slope: Option<f64>,
+}
+
+/// The whole comparison.
+#[derive(Clone, Debug, Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct CompareReport {
+    /// The compared quantity.
+    pub quantity: String,
+    /// The independent variable's name.
+    pub independent: String,
+    /// The adaptive reference run.
+    pub reference: CompareRun,
+    /// The fixed-step runs, method by method, largest h first.
+    pub runs: Vec<CompareRun>,
+    /// One fit per method.
+    pub fits: Vec<OrderFit>,
+}
+
+/// The least-squares slope of `ln y` against `ln x` over the pairs where both
+/// are positive and finite; `None` with fewer than two such pairs.
+pub fn log_log_slope(x: &[f64], y: &[f64]) -> Option<f64> {
+    let pts: Vec<(f64, f64)> = x
+        .iter()
+        .zip(y)
+        .filter(|(a, b)| a.is_finite() && b.is_finite() && **a > 0.0 && **b > 0.0)
+        .map(|(a, b)| (a.ln(), b.ln()))
+        .collect();
+    if pts.len() < 2 {
+        return None;
+    }
+    let n = pts.len() as f64;
+    let mx = pts.iter().map(|p| p.0).sum::<f64>() / n;
+    let my = pts.iter().map(|p| p.1).sum::<f64>() / n;
+    let sxx: f64 = pts.iter().map(|p| (p.0 - mx).powi(2)).sum();
+    let sxy: f64 = pts.iter().map(|p| (p.0 - mx) * (p.1 - my)).sum();
+    (sxx > 0.0).then(|| sxy / sxx)
+}
+
+fn pick(report: &RunReport, quantity: &str, method: &str, step: Option<f64>) -> CompareRun {
+    let y = report.values.0.iter().find(|(k, _)| k == quantity).map(|(_, v)| v.clone()).unwrap_or_default();
+    let end_t = report.t.last().copied().unwrap_or(f64::NAN);
+    let end = y.last().copied().unwrap_or(f64::NAN);
+    CompareRun {
+        method: method.to_string(),
+        step,
+        t: report.t.clone(),
+        y,
+        end_t,
+        end,
+        difference: 0.0,
+        rhs_evals: report.stats.rhs_evals,
+        status: report.status.to_string(),
+    }
+}
+
+/// Run the comparison of `sheet` under the base settings `base` (its end,
+/// output and step cap are used). `progress(done, total)` is called after
+/// each run.
+pub fn compare(
+    sheet: &str,
+    base: &RunRequest,
+    req: &CompareRequest,
+    progress: &mut dyn FnMut(usize, usize),
+) -> Result<CompareReport, ApiError> {
+    let levels = req.levels.clamp(2, 8);
+    let total = 1 + req.methods.len() * levels;
+    let reference_req = RunRequest {
+        method: Some("dp54".into()),
+        step: None,
+        rtol: Some(req.reference_rtol),
+        atol: Some(req.reference_rtol * 1e-3),
+        at: None,
+        ..base.clone()
+    };
+    let reference_report = solve(sheet, &reference_req)?;
+    progress(1, total);
+    let quantity = match &req.quantity {
+        Some(q) if reference_report.values.0.iter().any(|(k, _)| k == q) => q.clone(),
+        Some(q) => return Err(invalid("quantity", format!("the sheet has no state or helper named `{q}`"))),
+        None => reference_report.states.first().cloned().unwrap_or_default(),
+    };
+    let reference = pick(&reference_report, &quantity, "dp54", None);
+    let t0 = reference_report.t.first().copied().unwrap_or(0.0);
+    let span = (base.to.unwrap_or(reference.end_t) - t0).abs();
+    let h0 = match req.step {
+        Some(h) if h.is_finite() && h > 0.0 => h,
+        Some(_) => return Err(invalid("step", "the comparison's step must be a positive number")),
+        None => span / 40.0,
+    };
+    if !(h0 > 0.0) {
+        return Err(invalid("to", "the run has no length to compare over"));
+    }
+    let mut runs = Vec::new();
+    let mut fits = Vec::new();
+    let mut done = 1;
+    for method in &req.methods {
+        let mut steps = Vec::new();
+        let mut errors = Vec::new();
+        for k in 0..levels {
+            let h = h0 / f64::from(1u32 << k);
+            let r = RunRequest { method: Some(method.clone()), step: Some(h), at: None, ..base.clone() };
+            let report = solve(sheet, &r)?;
+            let mut run = pick(&report, &quantity, method, Some(h));
+            run.difference = run.end - reference.end;
+            steps.push(h);
+            errors.push(run.difference.abs());
+            runs.push(run);
+            done += 1;
+            progress(done, total);
+        }
+        let slope = log_log_slope(&steps, &errors);
+        fits.push(OrderFit { method: method.clone(), steps, errors, slope });
+    }
+    Ok(CompareReport { quantity, independent: reference_report.independent.clone(), reference, runs, fits })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const COOLING: &str = "T' = -0.0021*(T - 22)\nT(0) = 180\n";
+
+    #[test]
+    fn slope_of_exact_power_laws() {
+        // y = 3 h^2 exactly: slope 2.
+        let h = [0.1, 0.05, 0.025];
+        let e: Vec<f64> = h.iter().map(|h| 3.0 * h * h).collect();
+        assert!((log_log_slope(&h, &e).unwrap() - 2.0).abs() < 1e-12);
+        // Zero and NaN errors are left out; one usable pair is not enough.
+        assert_eq!(log_log_slope(&h, &[0.0, f64::NAN, 1.0]), None);
+    }
+
+    #[test]
+    fn comparison_tabulates_every_method_and_step_against_the_reference() {
+        let base = RunRequest { to: Some(1200.0), ..Default::default() };
+        let mut calls = Vec::new();
+        let rep = compare(COOLING, &base, &CompareRequest::default(), &mut |d, n| calls.push((d, n))).unwrap();
+        assert_eq!(rep.independent, "t");
+        assert_eq!(rep.quantity, "T");
+        assert_eq!(rep.runs.len(), 9);
+        assert_eq!(calls.last(), Some(&(10, 10)));
+        assert_eq!(rep.fits.len(), 3);
+        // Analytic: T(1200) = 22 + 158·exp(-0.0021·1200).
+        let exact = 22.0 + 158.0 * (-0.0021f64 * 1200.0).exp();
+        assert!((rep.reference.end - exact).abs() < 1e-6, "{} vs {exact}", rep.reference.end);
+        for r in &rep.runs {
+            assert!((r.end_t - 1200.0).abs() < 1e-9);
+            assert!((r.difference - (r.end - rep.reference.end)).abs() == 0.0);
+        }
+        assert_eq!(rep.runs[0].step, Some(30.0));
+        assert_eq!(rep.runs[2].step, Some(7.5));
+    }
+
+    #[test]
+    fn observed_orders_are_those_of_the_methods() {
+        // Common practice, no source: the global error of a p-th order method
+        // falls like h^p, so Euler, Heun and RK4 show slopes 1, 2 and 4.
+        let base = RunRequest { to: Some(1200.0), ..Default::default() };
+        let req = CompareRequest { levels: 4, ..Default::default() };
+        let rep = compare(COOLING, &base, &req, &mut |_, _| {}).unwrap();
+        for (fit, order) in rep.fits.iter().zip([1.0, 2.0, 4.0]) {
+            let slope = fit.slope.unwrap();
+            assert!((slope - order).abs() < 0.2, "{}: slope {slope}", fit.method);
+        }
+    }
+
+    #[test]
+    fn a_two_state_sheet_compares_the_chosen_quantity() {
+        // Undamped oscillator x'' = -x from x = 1: x(t) = cos t (analytic).
+        let sheet = "x'' = -x\nx(0) = 1\nx'(0) = 0\n";
+        let base = RunRequest { to: Some(3.0), ..Default::default() };
+        let req = CompareRequest { quantity: Some("x'".into()), ..Default::default() };
+        let rep = compare(sheet, &base, &req, &mut |_, _| {}).unwrap();
+        assert_eq!(rep.quantity, "x'");
+        assert!((rep.reference.end + 3f64.sin()).abs() < 1e-8);
+        let rk4_fine = rep.runs.iter().filter(|r| r.method == "rk4").last().unwrap();
+        assert!(rk4_fine.difference.abs() < 1e-6);
+    }
+
+    #[test]
+    fn an_unknown_quantity_is_a_settings_error() {
+        let base = RunRequest { to: Some(10.0), ..Default::default() };
+        let req = CompareRequest { quantity: Some("nope".into()), ..Default::default() };
+        assert!(matches!(compare(COOLING, &base, &req, &mut |_, _| {}), Err(ApiError::Settings(_))));
+    }
+}
