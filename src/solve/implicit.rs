@@ -11,6 +11,8 @@
 //! `κ = max(10ε/rtol, min(0.03, √rtol))` in the weighted norm.
 //! A failed iteration returns [`StepFault::NewtonFailed`] so the driver
 //! shrinks `h` and retries; the iteration count is bounded, so it never hangs.
+// Index loops here mirror the formulas they implement.
+#![allow(clippy::needless_range_loop)]
 
 use super::linalg::{rates, shifted, weight, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};

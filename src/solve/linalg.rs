@@ -4,6 +4,8 @@
 //!
 //! Storage follows [`crate::problem`]: a Jacobian is row-major,
 //! `jac[i * n + j] = ∂f_i/∂y_j`.
+// Index loops here mirror the formulas they implement.
+#![allow(clippy::needless_range_loop)]
 
 use nalgebra::{DMatrix, DVectorViewMut, Dyn, LU};
 

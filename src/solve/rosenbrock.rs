@@ -15,6 +15,8 @@
 //! The dense output of the Rodas family is
 //! `y(t + θh) = (1-θ) y + θ (y_new + (1-θ)(q1 + θ q2))` with
 //! `q_k = Σ_j h_kj u_j`.
+// Index loops here mirror the formulas they implement.
+#![allow(clippy::needless_range_loop)]
 
 use super::linalg::{rates, shifted, weighted_rms, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
@@ -71,6 +73,8 @@ impl RosenbrockTableau {
 /// here by the observed convergence orders of the solution (4), the error
 /// estimate (3) and the dense output (3). They are published decimals, not
 /// fractions: they solve nonlinear order conditions.
+// The digits as published, kept whole.
+#[allow(clippy::excessive_precision)]
 pub static RODAS4: RosenbrockTableau = RosenbrockTableau {
     id: "rodas4",
     order: 4,
