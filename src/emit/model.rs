@@ -96,19 +96,38 @@ fn load(names: &[&str], programs: &[&Program]) -> Option<Kernels> {
     load_bytes(&module(&named).ok()?, names)
 }
 
-/// Where a kernel's results go: the number of outputs it writes.
-fn fits(p: &Program, dim: usize, y: &[f64], out: &[f64]) -> bool {
-    p.dim() == dim && y.len() >= dim && out.len() >= p.outputs().len()
+/// A kernel ready to call: what it reads and writes, checked once.
+#[derive(Clone, Copy, Debug)]
+struct Direct {
+    f: KernelFn,
+    /// States it reads.
+    dim: usize,
+    /// Results it writes.
+    outputs: usize,
+    /// Its tape's live values. They stay at this address until the tapes are
+    /// rebuilt, after which [`EmittedModel::reload`] makes new `Direct`s: a
+    /// tape's slot array is allocated once and written in place.
+    live: *const f64,
 }
 
-/// Run kernel `f` of program `p` at `(t, y)` into `out`.
-///
-/// # Safety
-/// `f` must be the kernel emitted from `p`, and [`fits`] must hold: it reads
-/// `p.dim()` states, `p.n_live()` live values (from `p`'s own slots) and
-/// writes `p.outputs().len()` results.
-unsafe fn call(f: KernelFn, p: &Program, t: f64, y: &[f64], out: &mut [f64]) {
-    f(t, y.as_ptr(), out.as_mut_ptr(), p.live_values().as_ptr())
+impl Direct {
+    /// Kernel `f` emitted from `p`, for a model of `dim` states.
+    fn new(f: KernelFn, p: &Program, dim: usize) -> Direct {
+        // A tape of another shape never runs here: `run` refuses every call.
+        let dim = if p.dim() == dim { dim } else { usize::MAX };
+        Direct { f, dim, outputs: p.outputs().len(), live: p.live_values().as_ptr() }
+    }
+
+    /// Run at `(t, y)` into `out`; `false` (nothing run) when they are too short.
+    fn run(&self, t: f64, y: &[f64], out: &mut [f64]) -> bool {
+        if y.len() < self.dim || out.len() < self.outputs {
+            return false;
+        }
+        // SAFETY: the kernel reads `dim` states and its tape's live values
+        // (still at `live`) and writes `outputs` results; lengths checked.
+        unsafe { (self.f)(t, y.as_ptr(), out.as_mut_ptr(), self.live) };
+        true
+    }
 }
 
 const MAIN: [&str; 4] = ["rates", "all", "events", "switches"];
@@ -127,7 +146,10 @@ const DERIVATIVES: [&str; 2] = ["jacobian", "dfdt"];
 pub struct EmittedModel<M: BorrowMut<Model> = Model> {
     model: M,
     main: Option<Kernels>,
+    /// The main module's kernels, ready to call.
+    direct: Vec<Direct>,
     derivatives: Option<Kernels>,
+    derivative_direct: Vec<Direct>,
     /// Whether the derivative module was tried for the current tapes.
     derivatives_tried: bool,
     /// The RK4 stepper, once asked for; `None` inside when it could not be made.
@@ -143,7 +165,9 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         let mut m = EmittedModel {
             model,
             main: None,
+            direct: Vec::new(),
             derivatives: None,
+            derivative_direct: Vec::new(),
             derivatives_tried: false,
             stepper: None,
             loads: 0,
@@ -155,12 +179,18 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
 
     fn reload(&mut self) {
         self.main = None;
+        self.direct.clear();
         self.derivatives = None;
+        self.derivative_direct.clear();
         self.derivatives_tried = false;
         self.stepper = None;
         let m: &Model = self.model.borrow();
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
+        if let Some(k) = &self.main {
+            let programs = [m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()];
+            self.direct = programs.iter().enumerate().map(|(i, p)| Direct::new(k.kernel(i), p, m.dim())).collect();
+        }
         self.scratch = vec![0.0; m.all_program().outputs().len()];
     }
 
@@ -203,8 +233,10 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         self.reload();
     }
 
-    fn main_kernel(&self, k: usize) -> Option<KernelFn> {
-        self.main.as_ref().map(|m| m.kernel(k))
+    /// Run kernel `k` of the main module; `false` when it is not emitted or
+    /// the lengths do not fit.
+    fn run_main(&self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
+        self.direct.get(k).is_some_and(|d| d.run(t, y, out))
     }
 
     /// Take `steps` steps of size `h` of the classical RK4 method from
@@ -237,31 +269,24 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         true
     }
 
-    fn derivative_kernel(&mut self, k: usize) -> Option<KernelFn> {
+    /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`,
+    /// emitting their module on first use; `false` when it is not emitted or
+    /// the lengths do not fit.
+    fn run_derivative(&mut self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
         if !self.derivatives_tried && self.main.is_some() {
             self.derivatives_tried = true;
-            self.model.borrow_mut().jacobian_program();
-            self.model.borrow_mut().time_derivative_program();
-            let jac = self.model.borrow_mut().jacobian_program().clone();
-            let dfdt = self.model.borrow_mut().time_derivative_program();
-            self.derivatives = load(&DERIVATIVES, &[&jac, dfdt]);
-            self.loads += u32::from(self.derivatives.is_some());
+            let m: &mut Model = self.model.borrow_mut();
+            let jac = m.jacobian_program().clone();
+            let kernels = load(&DERIVATIVES, &[&jac, m.time_derivative_program()]);
+            if let Some(ks) = &kernels {
+                let dim = m.dim();
+                let jac = Direct::new(ks.kernel(0), m.jacobian_program(), dim);
+                self.derivative_direct = vec![jac, Direct::new(ks.kernel(1), m.time_derivative_program(), dim)];
+                self.loads += 1;
+            }
+            self.derivatives = kernels;
         }
-        self.derivatives.as_ref().map(|d| d.kernel(k))
-    }
-
-    /// Run derivative kernel `k` (0: the Jacobian, 1: `∂f/∂t`) into `out`;
-    /// `false` when it is not emitted or the lengths do not fit.
-    fn run_derivative(&mut self, k: usize, t: f64, y: &[f64], out: &mut [f64]) -> bool {
-        let dim = self.model.borrow().dim();
-        let Some(f) = self.derivative_kernel(k) else { return false };
-        let p = if k == 0 { self.model.borrow_mut().jacobian_program() } else { self.model.borrow_mut().time_derivative_program() };
-        if !fits(p, dim, y, out) {
-            return false;
-        }
-        // SAFETY: kernel `k` of the derivative module is emitted from this tape; lengths checked.
-        unsafe { call(f, p, t, y, out) };
-        true
+        self.derivative_direct.get(k).is_some_and(|d| d.run(t, y, out))
     }
 }
 
@@ -275,11 +300,8 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-        let p = self.model.borrow().rhs_program();
-        match self.main_kernel(0) {
-            // SAFETY: kernel 0 of the main module is emitted from this tape; `fits` checked the lengths.
-            Some(f) if fits(p, self.model.borrow().dim(), y, dy) => unsafe { call(f, p, t, y, dy) },
-            _ => self.model.borrow_mut().rhs(t, y, dy),
+        if !self.run_main(0, t, y, dy) {
+            self.model.borrow_mut().rhs(t, y, dy);
         }
     }
 
@@ -296,18 +318,16 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let dim = self.model.borrow().dim();
-        let p = self.model.borrow().all_program();
-        match self.main_kernel(1) {
-            Some(f) if fits(p, dim, y, &self.scratch) => {
-                // SAFETY: kernel 1 of the main module is emitted from this tape; lengths checked.
-                unsafe { call(f, p, t, y, &mut self.scratch) };
-                for (o, v) in out.iter_mut().zip(&self.scratch[dim..]) {
-                    *o = *v;
-                }
+        let mut scratch = std::mem::take(&mut self.scratch);
+        if self.run_main(1, t, y, &mut scratch) {
+            let dim = self.model.borrow().dim();
+            for (o, v) in out.iter_mut().zip(&scratch[dim..]) {
+                *o = *v;
             }
-            _ => self.model.borrow_mut().helpers(t, y, out),
+        } else {
+            self.model.borrow_mut().helpers(t, y, out);
         }
+        self.scratch = scratch;
     }
 
     fn events(&self) -> &[EventSpec] {
@@ -315,11 +335,8 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn event_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.borrow().event_program();
-        match self.main_kernel(2) {
-            // SAFETY: kernel 2 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.borrow_mut().event_values(t, y, out),
+        if !self.run_main(2, t, y, out) {
+            self.model.borrow_mut().event_values(t, y, out);
         }
     }
 
@@ -328,11 +345,8 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn switch_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
-        let p = self.model.borrow().switch_program();
-        match self.main_kernel(3) {
-            // SAFETY: kernel 3 of the main module is emitted from this tape; lengths checked.
-            Some(f) if fits(p, self.model.borrow().dim(), y, out) => unsafe { call(f, p, t, y, out) },
-            _ => self.model.borrow_mut().switch_values(t, y, out),
+        if !self.run_main(3, t, y, out) {
+            self.model.borrow_mut().switch_values(t, y, out);
         }
     }
 
