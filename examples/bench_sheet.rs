@@ -11,16 +11,20 @@ use ratebook::sheet::compile;
 use std::hint::black_box;
 use std::time::Instant;
 
-/// Nanoseconds per call of `rhs`, the best of several rounds.
-fn time_rhs(p: &mut dyn Problem, y: &[f64], calls: usize) -> f64 {
-    let mut dy = vec![0.0; p.dim()];
-    let mut best = f64::INFINITY;
-    for _ in 0..7 {
-        let start = Instant::now();
-        for k in 0..calls {
-            p.rhs(black_box(k as f64 * 1e-6), black_box(y), black_box(&mut dy));
+/// Nanoseconds per call of `rhs` for each problem, the best of several
+/// short rounds (short, so that some of them run on a quiet machine); the problems take turns within each round, so a change in the
+/// machine's load hits them alike.
+fn time_rhs(problems: &mut [&mut dyn Problem], y: &[f64], calls: usize) -> Vec<f64> {
+    let mut dy = vec![0.0; y.len()];
+    let mut best = vec![f64::INFINITY; problems.len()];
+    for _ in 0..300 {
+        for (p, b) in problems.iter_mut().zip(best.iter_mut()) {
+            let start = Instant::now();
+            for k in 0..calls {
+                p.rhs(black_box(k as f64 * 1e-6), black_box(y), black_box(&mut dy));
+            }
+            *b = b.min(start.elapsed().as_secs_f64() * 1e9 / calls as f64);
         }
-        best = best.min(start.elapsed().as_secs_f64() * 1e9 / calls as f64);
     }
     black_box(&dy);
     best
@@ -48,7 +52,7 @@ fn chain_sheet(n: usize) -> String {
 }
 
 fn main() {
-    let calls = 2_000_000;
+    let calls = 20_000;
     let (a, big_a, g) = (black_box(0.004), black_box(1.5), black_box(9.81));
     let xp = black_box(0.3);
     let (k, h, ta, p, w) = (black_box(0.8), black_box(0.05), black_box(20.0), black_box(3.0), black_box(0.7));
@@ -110,17 +114,18 @@ fn main() {
         model.rhs(0.5, &c.y, &mut d1);
         c.hand.rhs(0.5, &c.y, &mut d2);
         let agree = d1.iter().zip(&d2).all(|(x, y)| (x - y).abs() <= 1e-12 * x.abs().max(y.abs()).max(1.0));
-        let ts = time_rhs(&mut model, &c.y, calls);
-        let th = time_rhs(c.hand.as_mut(), &c.y, calls);
+        let times = time_rhs(&mut [&mut model, c.hand.as_mut()], &c.y, calls / c.y.len().min(10));
+        let (ts, th) = (times[0], times[1]);
         let ratio = ts / th;
         println!("| `{}` | {:.2} | {:.2} | {:.2} |{}", c.name, ts, th, ratio, if agree { "" } else { " values differ!" });
         rows.push(format!(
-            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"agree\": {}}}",
+            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"steps\": {}, \"agree\": {}}}",
             c.name,
             ts,
             th,
             ratio,
             model.rhs_program().insts().len(),
+            model.rhs_program().steps(),
             agree
         ));
     }

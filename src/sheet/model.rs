@@ -132,7 +132,7 @@ impl Model {
     /// Recompute the start, the initial state and the parameter values.
     fn refresh_constants(&mut self) {
         let p = &mut self.const_prog;
-        p.run(0.0, &[]);
+        p.run_plain(0.0, &[]);
         let s = p.slots();
         let out = p.outputs();
         let dim = self.y0.len();
@@ -330,11 +330,7 @@ impl Problem for Model {
 
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
         let dim = self.state_names.len();
-        self.all.run(t, y);
-        let s = self.all.slots();
-        for (o, &k) in out.iter_mut().zip(&self.all.outputs()[dim..]) {
-            *o = s[k as usize];
-        }
+        self.all.eval_from(t, y, dim, out);
     }
 
     fn events(&self) -> &[EventSpec] {
@@ -361,7 +357,7 @@ impl Problem for Model {
         if !t.is_finite() {
             return Some(NonFiniteCause { name: self.sheet.indep.clone(), what: "the independent variable is not a finite number".into() });
         }
-        self.all.run(t, y);
+        self.all.run_plain(t, y);
         let p = &self.all;
         let s = p.slots();
         let out = p.outputs();
