@@ -3,13 +3,14 @@
 // shown (see DEVELOPERS.md, "The accuracy view hook"). This version re-solves
 // with the tolerance tightened 100x (adaptive methods) or h halved (fixed
 // step) and states, for each final value, how many digits the two agree to.
-import { solve } from "./pkg/ratebook.js";
+import { solve, methods } from "./pkg/ratebook.js";
 import { el, fmt } from "./dom.js";
 
-const FIXED = new Set(["euler", "heun", "midpoint", "rk4", "backward-euler", "trapezoid"]);
+// Read when first needed: the solver is started by app.js after the imports.
+const isFixedStep = (id) => methods().some((m) => m.id === id && !m.adaptive);
 
 export function renderAccuracy(container, sheet, settings, run) {
-  const fixed = FIXED.has(settings.method);
+  const fixed = isFixedStep(settings.method);
   const tighter = fixed
     ? { ...settings, step: settings.step / 2 }
     : { ...settings, rtol: (settings.rtol ?? 1e-6) / 100, atol: (settings.atol ?? 1e-9) / 100 };

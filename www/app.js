@@ -379,6 +379,7 @@ async function startPage() {
   }
   if (!loaded) await loadExample(EXAMPLES[0].id, { keepOld: false });
   if (app.embed) readOnly(true);
+  document.body.dataset.readyAt = String(performance.now());
   document.body.dataset.ready = "1";
 }
 

@@ -286,9 +286,10 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
     let y0 = model.initial_state().to_vec();
     let to = base.to.filter(|v| v.is_finite()).ok_or_else(|| invalid("to", "the end of the run must be a finite number"))?;
     let names: Vec<String> = model.state_names().to_vec();
+    // Curves are drawn, not tabulated: a few digits beyond the pixels do.
     let tol = solve::Tolerance {
-        rtol: base.rtol.filter(|v| *v > 0.0).unwrap_or(1e-6),
-        atol: base.atol.filter(|v| *v > 0.0).unwrap_or(1e-9),
+        rtol: base.rtol.filter(|v| *v > 0.0).unwrap_or(1e-6).max(1e-5),
+        atol: base.atol.filter(|v| *v > 0.0).unwrap_or(1e-9).max(1e-8),
     };
     let cells = req.cells.unwrap_or(24).clamp(2, 80);
     let index = |name: &Option<String>, default: usize| -> Result<usize, ApiError> {
@@ -334,7 +335,7 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
     let w = req.window.and_then(valid).unwrap_or_else(|| auto_window(&main.states[ix], &main.states[iy]));
     let plane = Plane { t: t0, base: y0.clone(), ix, iy };
     let field = phase_samples(&mut model, &plane, &w, cells);
-    let nulls = nullclines(&mut model, &plane, &w, 80, (&names[ix], &names[iy]));
+    let nulls = nullclines(&mut model, &plane, &w, 48, (&names[ix], &names[iy]));
     let span = to - t0;
     let mut curves = Vec::new();
     for s in &req.starts {

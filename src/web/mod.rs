@@ -175,9 +175,33 @@ impl Plot {
     /// `[left, top, right, bottom, x0, x1, y0, y1]` (log10 units on log axes).
     pub fn draw(&self, canvas: web_sys::HtmlCanvasElement) -> Result<Vec<f64>, JsValue> {
         use plotters::prelude::IntoDrawingArea;
+        let ctx = canvas
+            .get_context("2d")
+            .ok()
+            .flatten()
+            .and_then(|c| c.dyn_into::<web_sys::CanvasRenderingContext2d>().ok());
         let backend = plotters_canvas::CanvasBackend::with_canvas_object(canvas)
             .ok_or_else(|| error_with("no 2D context on this canvas", &[]))?;
-        let frame = draw::figure(&backend.into_drawing_area(), &self.fig).map_err(|e| error_with(&e.0, &[]))?;
+        // The field's strokes go to the context as one path.
+        let mut stroke = |strokes: &[Vec<(i32, i32)>]| {
+            let Some(ctx) = &ctx else { return };
+            ctx.begin_path();
+            for s in strokes {
+                for (k, &(x, y)) in s.iter().enumerate() {
+                    let (x, y) = (x as f64 + 0.5, y as f64 + 0.5);
+                    if k == 0 {
+                        ctx.move_to(x, y);
+                    } else {
+                        ctx.line_to(x, y);
+                    }
+                }
+            }
+            ctx.set_stroke_style_str(draw::FIELD_CSS);
+            ctx.set_line_width(1.0);
+            ctx.stroke();
+        };
+        let frame = draw::figure_with(&backend.into_drawing_area(), &self.fig, Some(&mut stroke))
+            .map_err(|e| error_with(&e.0, &[]))?;
         Ok(frame.to_array().to_vec())
     }
 
