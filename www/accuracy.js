@@ -1,39 +1,171 @@
-// The accuracy view. The page calls renderAccuracy(container, sheet,
-// settings, run) whenever the view is shown or the run changes while it is
-// shown (see DEVELOPERS.md, "The accuracy view hook"). This version re-solves
-// with the tolerance tightened 100x (adaptive methods) or h halved (fixed
-// step) and states, for each final value, how many digits the two agree to.
-import { solve, methods } from "./pkg/ratebook.js";
+// The accuracy view: how far to trust the answer. The page calls
+// renderAccuracy(container, sheet, settings, run) whenever the view is shown or
+// the run changes while it is shown. The view asks the solver for an accuracy
+// check (checkAccuracy: a more accurate re-solve, an explicit-versus-implicit
+// cross check and the pitfall probes), shows the verdict, the cautions, a
+// table of every result with its error and trusted digits, the stability
+// picture of a fixed-step run, and offers a convergence study and the
+// printable report.
+import { checkAccuracy, convergenceStudy, stabilitySvg, version } from "./pkg/ratebook.js";
 import { el, fmt } from "./dom.js";
+import { printReport, saveReport } from "./report.js";
 
-// Read when first needed: the solver is started by app.js after the imports.
-const isFixedStep = (id) => methods().some((m) => m.id === id && !m.adaptive);
+/** Significant digits the page's results show (results.js prints with fmt(v, 6)). */
+export const SHOWN_DIGITS = 6;
+
+const svgUrl = (svg) => "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(svg)));
+const plainName = (s) => s.replace(/`/g, "");
+
+let state = null; // { sheet, settings, report, stability, convergence }
+
+function solverSettings(settings) {
+  const { spacing, ...rest } = settings ?? {};
+  return rest;
+}
+
+function quantityTable(rep) {
+  const head = el("tr", {}, ...["result", "value", "error", "trusted digits", "check value"].map((h) => el("th", {}, h)));
+  const rows = rep.quantities.map((q) => el("tr", { class: q.disagrees ? "disagrees" : undefined },
+    el("td", {}, plainName(q.sentence.split(" = ")[0])),
+    el("td", { class: "num", "data-v": String(q.value) }, q.shown),
+    el("td", { class: "num" }, q.error == null ? "unknown" : `± ${q.errorShown}`),
+    el("td", { class: "num", "data-digits": String(q.digits) }, q.error == null ? "–" : (q.negligible ? "≈ 0" : String(q.digits))),
+    el("td", { class: "num" }, q.check == null ? "–" : fmt(q.check, 10))));
+  return el("div", { class: "table-wrap" }, el("table", { class: "numbers", id: "accuracy-table" }, head, ...rows));
+}
+
+function pitfallList(rep) {
+  if (!rep.pitfalls.length) return el("p", { id: "accuracy-pitfalls", class: "muted" }, "No pitfall found: the run is stable, the rates are well behaved at the start, and no event is merely grazed.");
+  return el("div", { id: "accuracy-pitfalls" }, ...rep.pitfalls.map((p) => el("div", { class: `rb-pitfall rb-${p.level}`, "data-code": p.code, role: p.level === "alarm" ? "alert" : undefined },
+    el("strong", {}, p.title), " ", el("span", {}, p.message))));
+}
+
+function stabilityFigure(rep) {
+  const st = rep.stability;
+  if (!st) return null;
+  const flat = st.points.flatMap((p) => [p[0], p[1]]);
+  let svg;
+  try {
+    svg = stabilitySvg(st.method, `${rep.method.name}, h = ${fmt(st.h, 6)}`, new Float64Array(flat), 560, 380);
+  } catch {
+    return null;
+  }
+  state.stability = svg;
+  const limit = st.largestStableStep == null ? "any step is stable for these modes" : `largest stable step h = ${fmt(st.largestStableStep, 4)}`;
+  return el("figure", { id: "accuracy-stability" },
+    el("img", { src: svgUrl(svg), alt: `stability region of ${rep.method.name} with the run's h·λ points`, width: 560, height: 380 }),
+    el("figcaption", {}, `Stability region of ${rep.method.name} (shaded): each h·λ of the run, a cross outside, a dot inside; ${limit}.`));
+}
+
+function convergencePanel(sheet, settings, rep) {
+  const fixed = !rep.method.adaptive;
+  const span = Math.abs((settings.to ?? 1) - (rep.t0 ?? 0));
+  const hInput = el("input", { id: "conv-h", type: "number", step: "any", min: "0", value: String(fixed ? settings.step : fmt(span / 50, 3)), "aria-label": "largest step h" });
+  const target = el("input", { id: "conv-target", type: "number", step: "any", min: "0", placeholder: "e.g. 1e-6", "aria-label": "target error" });
+  const out = el("div", { id: "conv-out" });
+  const button = el("button", { type: "button", id: "conv-run" }, "Run the convergence study");
+  button.addEventListener("click", () => {
+    const h = Number(hInput.value);
+    const t = Number(target.value);
+    const methods = fixed ? [rep.method.id] : ["euler", "heun", "rk4"];
+    let study;
+    try {
+      study = convergenceStudy(sheet, { ...solverSettings(settings), method: methods[0], step: h, methods, target: t > 0 ? t : undefined });
+    } catch (e) {
+      out.replaceChildren(el("p", { class: "bad" }, `The study failed: ${e.message}`));
+      return;
+    }
+    state.convergence = study;
+    const rows = study.lines.map((l) => el("tr", {},
+      el("td", {}, `${plainName(l.label)}`), el("td", {}, l.methodName),
+      el("td", { class: "num" }, l.observed.map((q) => (q == null ? "–" : q.toFixed(2))).join(", ")),
+      el("td", { class: "num" }, String(l.order)),
+      el("td", { class: "num" }, `${fmt(l.extrapolated, 10)} ± ${fmt(l.extrapolatedError, 1)}`),
+      el("td", { class: "num" }, l.stepForTarget == null ? "–" : fmt(l.stepForTarget, 3)),
+      el("td", {}, l.offTheory ? "far from theory" : "as expected")));
+    out.replaceChildren(
+      el("img", { src: svgUrl(study.plot), alt: "error against step size, log-log", width: 640, height: 400 }),
+      el("table", { class: "numbers", id: "conv-table" },
+        el("tr", {}, ...["result", "method", "observed order (coarse → fine)", "theory", "Richardson limit", "h for target", ""].map((x) => el("th", {}, x))), ...rows),
+      ...study.lines.filter((l) => l.offTheory).map((l) => el("p", { class: "rb-pitfall rb-warning" }, plainName(l.sentence))),
+      ...study.notes.map((n) => el("p", { class: "muted" }, n)),
+      el("p", { class: "muted" }, `Errors are measured as ${study.reference}.`));
+  });
+  return el("details", { id: "accuracy-convergence", open: fixed ? true : undefined },
+    el("summary", {}, fixed ? "Convergence study: h, h/2, h/4, h/8" : "Convergence study of Euler, Heun and RK4 at h, h/2, h/4, h/8"),
+    el("p", {}, "Runs the fixed-step method at four steps, each half the one before, and compares the observed order with the theoretical one (1 for Euler, 2 for Heun and the midpoint rule, 4 for RK4). A target error gives the step that reaches it."),
+    el("label", {}, "largest step h ", hInput), " ", el("label", {}, "target error ", target), " ", button, out);
+}
+
+function cautionTexts() {
+  const c = document.querySelector("footer.caution");
+  if (!c) return ["Results are only as good as the model and its numbers; where safety is at stake, local codes and licensed professional practice govern."];
+  return [...c.querySelectorAll("p")].filter((p) => !p.hidden && p.id !== "version-line" && p.textContent.trim()).map((p) => p.textContent.trim());
+}
+
+function timePlotUrl() {
+  const c = document.querySelector("#time-view canvas:not(.hover)");
+  try { return c && c.width > 0 ? c.toDataURL("image/png") : null; } catch { return null; }
+}
+
+/** Everything the printable report needs, from the last check. */
+export function reportData() {
+  if (!state?.report) return null;
+  return {
+    sheet: state.sheet,
+    settings: state.settings,
+    report: state.report,
+    stabilitySvg: state.stability,
+    convergence: state.convergence,
+    timePlotUrl: timePlotUrl(),
+    caution: cautionTexts(),
+    version: state.report.version ?? version(),
+  };
+}
 
 export function renderAccuracy(container, sheet, settings, run) {
-  const fixed = isFixedStep(settings.method);
-  const tighter = fixed
-    ? { ...settings, step: settings.step / 2 }
-    : { ...settings, rtol: (settings.rtol ?? 1e-6) / 100, atol: (settings.atol ?? 1e-9) / 100 };
-  let check;
+  ensureStyle();
+  let rep;
   try {
-    check = solve(sheet, tighter);
+    rep = checkAccuracy(sheet, { ...solverSettings(settings), shownDigits: SHOWN_DIGITS });
   } catch (e) {
-    container.replaceChildren(el("p", { class: "bad" }, `The check run failed: ${e.message}`));
+    container.replaceChildren(el("p", { class: "bad" }, `The accuracy check could not run: ${e.message}`));
     return;
   }
-  const last = run.t.length - 1, cl = check.t.length - 1;
-  const rows = [...run.states, ...run.helpers].map((n) => {
-    const a = run.values[n][last], b = check.values[n][cl];
-    const err = Math.abs(a - b);
-    const scale = Math.max(Math.abs(a), Math.abs(b));
-    const digits = err === 0 ? 15 : Math.max(0, Math.floor(-Math.log10(err / (scale || 1))));
-    return el("tr", {}, el("td", {}, n), el("td", { class: "num" }, fmt(a, 10)), el("td", { class: "num" }, fmt(b, 10)),
-      el("td", { class: "num" }, `± ${fmt(err, 2)}`), el("td", { class: "num" }, `about ${Math.min(digits, 15)}`));
-  });
-  const how = fixed ? `h halved to ${fmt(tighter.step, 4)}` : `tolerances tightened 100x (rtol ${fmt(tighter.rtol, 2)})`;
-  container.replaceChildren(
-    el("h3", {}, "How far to trust the final values"),
-    el("p", {}, `Checked by re-solving with ${how}. The difference estimates the error of the run shown.`),
-    el("table", { class: "numbers", id: "accuracy-table" },
-      el("tr", {}, ...["quantity", "run", "check", "difference", "digits"].map((h) => el("th", {}, h))), ...rows));
+  rep.t0 = run?.t?.[0] ?? 0;
+  state = { sheet, settings, report: rep, stability: null, convergence: null };
+  const print = el("button", { type: "button", id: "report-print" }, "Print report");
+  const save = el("button", { type: "button", id: "report-save" }, "Save report");
+  print.addEventListener("click", () => printReport(reportData()));
+  save.addEventListener("click", () => saveReport(reportData()));
+  const notes = rep.notes.length ? el("ul", { class: "diagnostics" }, ...rep.notes.map(([level, m]) => el("li", {}, `${level}: ${m}`))) : null;
+  container.replaceChildren(...[
+    el("h3", {}, "How far to trust the answer"),
+    el("p", { id: "accuracy-verdict", class: rep.alarm ? "rb-verdict rb-alarm" : "rb-verdict", role: rep.alarm ? "alert" : undefined }, rep.verdict),
+    pitfallList(rep),
+    quantityTable(rep),
+    el("p", { class: "muted" }, `Checked by: ${rep.how}. The difference from the check estimates the error of the run shown; trusted digits are those the error leaves standing.`),
+    rep.cross ? el("p", { id: "accuracy-cross" }, rep.cross.sentence) : null,
+    stabilityFigure(rep),
+    notes,
+    convergencePanel(sheet, settings, rep),
+    el("div", { class: "actions rb-report-actions" }, print, save),
+  ].filter(Boolean));
+}
+
+let styled = false;
+function ensureStyle() {
+  if (styled) return;
+  styled = true;
+  document.head.append(el("style", {}, `
+#accuracy-view .rb-verdict { font-weight: 600; font-size: 1.05rem; }
+#accuracy-view .rb-alarm { border: 2px solid #b01c1c; background: #fdeeee; color: #5c0b0b; padding: .5rem .7rem; }
+#accuracy-view .rb-pitfall { margin: .45rem 0; padding: .4rem .6rem; border-left: 4px solid #9a7b12; background: #fbf6e6; }
+#accuracy-view .rb-pitfall.rb-alarm { border-left-color: #b01c1c; background: #fdeeee; }
+#accuracy-view .rb-pitfall.rb-note { border-left-color: #1f5fa8; background: #eef4fb; }
+#accuracy-view tr.disagrees td { color: #b01c1c; font-weight: 600; }
+#accuracy-view figure img, #accuracy-view #conv-out img { max-width: 100%; height: auto; }
+#accuracy-view details { margin: .8rem 0; }
+#accuracy-view input[type=number] { width: 8rem; }
+`));
 }

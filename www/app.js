@@ -25,7 +25,7 @@ let METHODS = [];
 const PLOT_POINTS = 600;
 const EDIT_DELAY_MS = 300;
 
-const solverModule = new WebAssembly.Module(wasmBytes());
+const solverModule = new WebAssembly.Module(await wasmBytes());
 initSync({ module: solverModule });
 setModule(solverModule);
 // [id, label, "adaptive" | "fixed"], `auto` first, from the solver's registry.

@@ -13,6 +13,8 @@ use crate::problem::Problem;
 use crate::sheet::{self, Model, ModelError};
 use crate::solve::{self, Level, Run, Settings, SolveError, Status, Tolerance};
 
+pub mod study;
+
 /// Settings of one run, as the JS API takes them (`solve(sheet, settings)`).
 /// Absent fields take the solver's defaults ([`Settings::default`]).
 #[derive(Clone, Debug, Default, Deserialize, Serialize, PartialEq)]

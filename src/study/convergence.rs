@@ -70,9 +70,9 @@ pub struct Ladder {
     pub errors: Vec<f64>,
     /// The Richardson-extrapolated value from the two finest values.
     pub extrapolated: f64,
-    /// Error estimate of the extrapolated value: the largest change between
-    /// the last extrapolation and the earlier ones, or, with only two values,
-    /// a tenth of the finest value's error.
+    /// Error estimate of the extrapolated value: the last change of the
+    /// extrapolations divided by `2^q − 1`, `q` the order at which they
+    /// converge; with only two values, a tenth of the finest value's error.
     pub extrapolated_error: f64,
 }
 
@@ -92,9 +92,20 @@ impl Ladder {
             0 | 1 => f64::NAN,
             n => (values[n - 1] - extrapolated).abs(),
         };
-        let extrapolated_error = if ex.len() >= 2 {
-            let last = ex[ex.len() - 1];
-            ex.iter().map(|e| (e - last).abs()).fold(0.0, f64::max).max(f64::EPSILON * extrapolated.abs())
+        let n = ex.len();
+        let floor = f64::EPSILON * extrapolated.abs();
+        let extrapolated_error = if n >= 2 && order_used != p {
+            // Extrapolated with the observed order: the last two coincide by construction.
+            ex.iter().map(|e| (e - extrapolated).abs()).fold(0.0, f64::max).max(floor)
+        } else if n >= 3 {
+            // The extrapolations converge at their own order q; the last one's
+            // error is its change divided by 2^q − 1.
+            let (d1, d2) = (ex[n - 2] - ex[n - 3], ex[n - 1] - ex[n - 2]);
+            let q = (d1 / d2).abs().log2();
+            let shrink = if q.is_finite() && q > 0.5 && d1 * d2 > 0.0 { 2f64.powf(q) - 1.0 } else { 1.0 };
+            (d2.abs() / shrink).max(floor)
+        } else if n == 2 {
+            (ex[1] - ex[0]).abs().max(floor)
         } else {
             0.1 * finest_err
         };

@@ -47,6 +47,21 @@ pub fn with_digits(x: f64, n: u32) -> String {
     }
 }
 
+/// A number as a setting is echoed: up to 6 significant digits, trailing
+/// zeros dropped (`0.01`, `1e-6`, `412.5`).
+pub fn plain(x: f64) -> String {
+    if !x.is_finite() || x == 0.0 {
+        return with_digits(x, 1);
+    }
+    let s = with_digits(x, 6);
+    let (mant, exp) = match s.split_once('e') {
+        Some((m, e)) => (m.to_string(), format!("e{e}")),
+        None => (s.clone(), String::new()),
+    };
+    let mant = if mant.contains('.') { mant.trim_end_matches('0').trim_end_matches('.').to_string() } else { mant };
+    mant + &exp
+}
+
 /// An error bound printed with one significant digit, rounded up so that it
 /// never understates the estimate (`0.0273` → `0.03`).
 pub fn error_text(e: f64) -> String {
@@ -94,5 +109,8 @@ mod tests {
         assert_eq!(with_digits(-2.5, 3), "-2.50");
         assert_eq!(with_digits(3.0e12, 3), "3.00e12");
         assert_eq!(error_text(7.2e-9), "8e-9");
+        assert_eq!(plain(0.0100), "0.01");
+        assert_eq!(plain(1e-6), "1e-6");
+        assert_eq!(plain(412.5), "412.5");
     }
 }

@@ -13,3 +13,6 @@ pub mod convergence;
 pub mod digits;
 pub mod probe;
 pub mod stability;
+pub mod check;
+pub mod pitfalls;
+pub mod sweep;

@@ -343,3 +343,38 @@ mod tests {
         assert!((area - std::f64::consts::PI).abs() < 0.05, "{area}");
     }
 }
+
+#[cfg(test)]
+mod implicit_tests {
+    use super::*;
+    use crate::solve::implicit::RADAU5;
+    use crate::solve::rosenbrock::RODAS4;
+
+    fn rodas4() -> StabilityFunction {
+        StabilityFunction::Rosenbrock {
+            gamma: RODAS4.gamma,
+            a: RODAS4.a.iter().map(|r| r.to_vec()).collect(),
+            coupling: RODAS4.c_coupling.iter().map(|r| r.to_vec()).collect(),
+            b: RODAS4.b.to_vec(),
+        }
+    }
+
+    #[test]
+    fn rodas4_and_radau5_are_l_stable_and_accurate_near_zero() {
+        let radau = StabilityFunction::Stages {
+            a: RADAU5.a.iter().flatten().map(|x| x.value()).collect(),
+            b: RADAU5.a[2].iter().map(|x| x.value()).collect(),
+        };
+        for (f, order) in [(rodas4(), 4), (radau, 5)] {
+            // Order p: R(z) − e^z = O(z^(p+1)) (Hairer & Wanner, Solving ODEs II, Sec. IV.3).
+            for z in [0.01, -0.02] {
+                let d = (f.eval(C64::new(z, 0.0)) - C64::new(z, 0.0).exp()).norm();
+                assert!(d < 10.0 * z.abs().powi(order + 1), "{order} {z} {d}");
+            }
+            // L-stable: |R(z)| → 0 as z → −∞, and A-stable on the imaginary axis.
+            assert!(f.growth(C64::new(-1e8, 0.0)) < 1e-3);
+            assert!(f.growth(C64::new(-1e-3, 50.0)) <= 1.0);
+            assert_eq!(f.largest_stable_step(C64::new(-1e5, 1e3)), None);
+        }
+    }
+}

@@ -210,3 +210,5 @@ impl Plot {
         draw::figure_svg(&self.fig, width, height).map_err(|e| error_with(&e.0, &[]))
     }
 }
+
+mod study;

@@ -20,7 +20,7 @@ async function solverPage() {
   await opened.page.evaluate(async () => {
     const rb = await import("/pkg/ratebook.js");
     const { wasmBytes } = await import("/pkg/wasm_bytes.js");
-    rb.initSync({ module: wasmBytes() });
+    rb.initSync({ module: await wasmBytes() });
     globalThis.rb = rb;
   });
   return opened;
@@ -84,7 +84,7 @@ test("a Web Worker emits and installs modules the same way", async () => {
       };`;
     const w = new Worker(URL.createObjectURL(new Blob([code], { type: "text/javascript" })), { type: "module" });
     const { wasmBytes } = await import("/pkg/wasm_bytes.js");
-    const module = await WebAssembly.compile(wasmBytes());
+    const module = await WebAssembly.compile(await wasmBytes());
     const reply = await new Promise((ok, fail) => { w.onmessage = (e) => ok(e.data); w.onerror = (e) => fail(String(e.message)); w.postMessage({ module, sheet, pts }); });
     w.terminate();
     return [{ emitted: main.emitted, compiled: Array.from(main.compiled) }, reply];

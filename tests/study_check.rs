@@ -1,0 +1,87 @@
+//! The accuracy check against exact solutions: its error estimates must
+//! bracket the true error within a factor of 10, for every method and for
+//! tolerances from 1e-3 to 1e-10.
+
+use ratebook::problems;
+use ratebook::solve::{self, Settings, Tolerance};
+use ratebook::study::check::{check, Kind, Options};
+
+/// Problems of the shared set with analytic solutions (their `source` says so).
+const EXACT: [&str; 3] = ["logistic", "cooling", "oscillator"];
+
+fn no_cross() -> Options {
+    Options { shown_digits: 6, cross_method: false }
+}
+
+/// `(ratio est/true, relative true error)` for each final state of `name` under `settings`.
+fn ratios(name: &str, settings: &Settings) -> Vec<(f64, f64)> {
+    let tp = problems::by_name(name).unwrap();
+    assert!(tp.source.starts_with("analytic"), "{name}: {}", tp.source);
+    let reference = tp.reference.clone().unwrap();
+    let mut p = (tp.make)();
+    let s = Settings { to: tp.t_end, ..settings.clone() };
+    let r = check(p.as_mut(), tp.t0, &tp.y0, &s, "t", &no_cross()).unwrap();
+    let names = p.state_names().to_vec();
+    let mut out = Vec::new();
+    for (i, n) in names.iter().enumerate() {
+        let q = r.quantities.iter().find(|q| q.kind == Kind::Final && &q.name == n).unwrap();
+        let truth = (q.value - reference[i]).abs();
+        let est = q.error.unwrap();
+        out.push((est / truth, truth / reference[i].abs().max(1e-300)));
+    }
+    out
+}
+
+/// A true error below this relative size is rounding, not truncation: there the
+/// estimate only has to be as small (common practice, no source).
+const ROUNDING: f64 = 1e-13;
+
+fn assert_brackets(label: &str, v: &[(f64, f64)], bad: &mut Vec<String>) {
+    for (ratio, rel) in v {
+        if *rel < ROUNDING {
+            continue;
+        }
+        if !(0.1..=10.0).contains(ratio) {
+            bad.push(format!("{label}: estimate/true = {ratio:.3} (true relative error {rel:.1e})"));
+        }
+    }
+}
+
+#[test]
+fn adaptive_estimates_bracket_the_true_error() {
+    let mut bad = Vec::new();
+    let mut n = 0;
+    let ids: Vec<&str> = solve::methods().iter().filter(|m| m.adaptive).map(|m| m.id).collect();
+    for name in EXACT {
+        for id in &ids {
+            for k in 3..=10 {
+                let rtol = 10f64.powi(-k);
+                let s = Settings { method: id.to_string(), tol: Tolerance { rtol, atol: rtol * 1e-3 }, ..Settings::default() };
+                let v = ratios(name, &s);
+                n += v.len();
+                assert_brackets(&format!("{name} {id} rtol {rtol:.0e}"), &v, &mut bad);
+            }
+        }
+    }
+    assert!(bad.is_empty(), "{} of {n} outside [0.1, 10]:\n{}", bad.len(), bad.join("\n"));
+}
+
+#[test]
+fn fixed_step_estimates_bracket_the_true_error() {
+    let mut bad = Vec::new();
+    let mut n = 0;
+    let ids: Vec<&str> = solve::methods().iter().filter(|m| !m.adaptive).map(|m| m.id).collect();
+    for name in EXACT {
+        let tp = problems::by_name(name).unwrap();
+        let span = (tp.t_end - tp.t0).abs();
+        for id in &ids {
+            for steps in [40.0, 160.0, 640.0, 2560.0] {
+                let s = Settings { method: id.to_string(), step: Some(span / steps), ..Settings::default() };
+                let v = ratios(name, &s);
+                n += v.len();
+                assert_brackets(&format!("{name} {id} h = span/{steps}"), &v, &mut bad);
+            }
+        }
+    }
+    assert!(bad.is_empty(), "{} of {n} outside [0.1, 10]:\n{}", bad.len(), bad.join("\n"));
+}
