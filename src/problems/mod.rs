@@ -38,7 +38,8 @@ pub fn all() -> Vec<TestProblem> {
 
 /// The problem of the shared set with this name.
 pub fn by_name(name: &str) -> Option<TestProblem> {
-    all().into_iter().find(|p| p.name == name)
+    let find = |v: Vec<TestProblem>| v.into_iter().find(|p| p.name == name);
+    find(nonstiff::all()).or_else(|| find(stiff::all()))
 }
 
 /// A vector function `f(t, y, out)` of an optional part of a [`FnProblem`].

@@ -11,8 +11,9 @@ pub const REFERENCE_JSON: &str = include_str!("../../tests/reference/nonstiff.js
 
 /// A number from the reference JSON by path, e.g. `["lorenz", "at", "5"]`.
 pub fn reference(path: &[&str]) -> Option<serde_json::Value> {
-    let v: serde_json::Value = serde_json::from_str(REFERENCE_JSON).ok()?;
-    let mut cur = &v;
+    static PARSED: std::sync::OnceLock<Option<serde_json::Value>> = std::sync::OnceLock::new();
+    let v = PARSED.get_or_init(|| serde_json::from_str(REFERENCE_JSON).ok()).as_ref()?;
+    let mut cur = v;
     for p in path {
         cur = cur.get(p)?;
     }
@@ -240,4 +241,32 @@ pub fn all() -> Vec<TestProblem> {
             make: || boxed(&["theta", "omega"], pendulum_rhs),
         },
     ]
+}
+
+/// The non-stiff benchmark's cases (`scripts/bench.d/solver`): Arenstorf to
+/// its period, Lorenz to t = 20, the Brusselator to t = 20 and the driven
+/// oscillator to t = 40, at rtol = atol = 1e-3, 1e-6 and 1e-9, for each
+/// adaptive explicit method. Run one with [`super::stiff::bench_run`], which
+/// serves any problem of the shared set.
+pub fn bench_cases() -> Vec<super::stiff::BenchCase> {
+    let mut v = Vec::new();
+    for problem in ["arenstorf", "lorenz", "brusselator", "oscillator"] {
+        for tol in [1e-3, 1e-6, 1e-9] {
+            for method in ["bs32", "dp54", "dp853"] {
+                v.push(super::stiff::BenchCase { problem, method, rtol: tol, atol: tol });
+            }
+        }
+    }
+    v
+}
+
+/// The rate function of a benchmark problem, for the hand-written baseline.
+pub fn bench_rhs(problem: &str) -> Option<fn(f64, &[f64], &mut [f64])> {
+    Some(match problem {
+        "arenstorf" => arenstorf_rhs,
+        "lorenz" => lorenz_rhs,
+        "brusselator" => brusselator_rhs,
+        "oscillator" => oscillator_rhs,
+        _ => return None,
+    })
 }

@@ -1149,7 +1149,15 @@ fn error_order(m: &MethodInfo) -> u32 {
     }
 }
 
-/// Edge of the stability region on the negative real axis (0 when unknown).
+/// Edge of the stability region on the negative real axis (0 when unknown),
+/// computed once per method.
 fn stability_limit(m: &MethodInfo) -> f64 {
-    m.tableau.map(|t| boundary_radius(&t.stability_polynomial(), std::f64::consts::PI)).unwrap_or(0.0)
+    static LIMITS: std::sync::OnceLock<Vec<(&'static str, f64)>> = std::sync::OnceLock::new();
+    let limits = LIMITS.get_or_init(|| {
+        methods()
+            .iter()
+            .map(|m| (m.id, m.tableau.map(|t| boundary_radius(&t.stability_polynomial(), std::f64::consts::PI)).unwrap_or(0.0)))
+            .collect()
+    });
+    limits.iter().find(|(id, _)| *id == m.id).map(|(_, l)| *l).unwrap_or(0.0)
 }

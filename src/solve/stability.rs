@@ -25,7 +25,7 @@ pub fn amplification(g: &[f64], re: f64, im: f64) -> f64 {
 pub fn boundary_radius(g: &[f64], phi: f64) -> f64 {
     let (c, s) = (phi.cos(), phi.sin());
     let inside = |r: f64| amplification(g, r * c, r * s) <= 1.0 + 1e-12;
-    let dr = 1e-3;
+    let dr = 1e-2;
     let mut r = dr;
     while r < 100.0 {
         if !inside(r) {

@@ -1,0 +1,248 @@
+//! Native part of the non-stiff benchmark (`scripts/bench.d/solver`).
+//!
+//! `bench_solver run`: every case of `ratebook::problems::nonstiff::bench_cases`
+//! through the driver (`solve`, as the page runs it) and through a
+//! hand-written baseline loop of the same method (the rate function inlined as
+//! a closure, fixed-size arrays, no dense output or events), each repeated
+//! until about 0.2 s has passed; prints one JSON array with the fastest times.
+//!
+//! `bench_solver plot IN.json OUT.svg`: the work-precision plot (achieved
+//! error against rhsEvals) from the merged rows the bench script writes.
+
+use std::time::Instant;
+
+use plotters::prelude::*;
+use ratebook::problems::nonstiff::{bench_cases, bench_rhs};
+use ratebook::problems::stiff::bench_run;
+use ratebook::solve::control::{PiController, FAC_MAX};
+use ratebook::solve::method;
+use ratebook::solve::tableau::{ErrorEstimate, Tableau};
+
+/// Repeat `f` until about 0.2 s has passed (at least 3 runs); the fastest time.
+fn timed<T>(mut f: impl FnMut() -> T) -> (T, f64, u32) {
+    let (mut best, mut spent, mut runs) = (f64::INFINITY, 0.0, 0u32);
+    let mut out = f();
+    while runs < 3 || (spent < 0.2 && runs < 5000) {
+        let t0 = Instant::now();
+        out = f();
+        let dt = t0.elapsed().as_secs_f64();
+        best = best.min(dt);
+        spent += dt;
+        runs += 1;
+    }
+    (out, best, runs)
+}
+
+fn rms(e: &[f64], y: &[f64], z: &[f64], rtol: f64, atol: f64) -> f64 {
+    let s: f64 = e.iter().zip(y).zip(z).map(|((e, a), b)| (e / (atol + rtol * a.abs().max(b.abs()))).powi(2)).sum();
+    (s / e.len() as f64).sqrt()
+}
+
+/// The baseline: one explicit embedded pair, written out plainly for `N`
+/// states with the rates as a closure. Same initial step rule, same PI
+/// controller and FSAL reuse as the driver, none of its generality.
+fn baseline<const N: usize>(tab: &Tableau, f: impl Fn(f64, &[f64], &mut [f64]), y0: &[f64], t_end: f64, rtol: f64, atol: f64) -> ([f64; N], u64) {
+    let s = tab.stages();
+    let mut k = vec![[0.0; N]; s];
+    let mut y = [0.0; N];
+    y.copy_from_slice(y0);
+    let mut nfev = 0u64;
+    let (e, e3): (Vec<f64>, Vec<f64>) = match &tab.error {
+        ErrorEstimate::Embedded { b_hat } => (tab.b.iter().zip(b_hat.iter()).map(|(b, c)| b - c).collect(), vec![]),
+        ErrorEstimate::Blended { e5, e3 } => (e5.to_vec(), e3.to_vec()),
+        ErrorEstimate::None => return (y, 0),
+    };
+    // Hairer's initial step (as in the driver).
+    f(0.0, &y, &mut k[0]);
+    nfev += 1;
+    let zero = [0.0; N];
+    let d0 = rms(&y, &y, &zero, rtol, atol);
+    let d1 = rms(&k[0], &y, &zero, rtol, atol);
+    let h0 = if d0 < 1e-5 || d1 < 1e-5 { 1e-6 } else { 0.01 * d0 / d1 }.min(t_end);
+    let mut y1 = [0.0; N];
+    for i in 0..N {
+        y1[i] = y[i] + h0 * k[0][i];
+    }
+    let mut f1 = [0.0; N];
+    f(h0, &y1, &mut f1);
+    nfev += 1;
+    let mut df = [0.0; N];
+    for i in 0..N {
+        df[i] = f1[i] - k[0][i];
+    }
+    let d2 = rms(&df, &y, &zero, rtol, atol) / h0;
+    let m = d1.max(d2);
+    let h1 = if m <= 1e-15 { (h0 * 1e-3).max(1e-6) } else { (0.01 / m).powf(1.0 / (tab.order as f64 + 1.0)) };
+    let mut h = (100.0 * h0).min(h1).min(t_end);
+    let mut ctrl = PiController::new(tab.error_order);
+    let mut t = 0.0;
+    let mut first_ready = false;
+    let mut stage = [0.0; N];
+    let mut err = [0.0; N];
+    let mut err3 = [0.0; N];
+    while t < t_end {
+        let last = t + h >= t_end;
+        if last {
+            h = t_end - t;
+        }
+        if !first_ready {
+            f(t, &y, &mut k[0]);
+            nfev += 1;
+            first_ready = true;
+        }
+        for i in 1..s {
+            stage.copy_from_slice(&y);
+            for (j, a) in tab.a[i].iter().enumerate() {
+                if *a != 0.0 {
+                    for q in 0..N {
+                        stage[q] += h * a * k[j][q];
+                    }
+                }
+            }
+            let (head, tail) = k.split_at_mut(i);
+            let _ = head;
+            f(t + tab.c[i] * h, &stage, &mut tail[0]);
+            nfev += 1;
+        }
+        // FSAL: the last stage argument is y_new.
+        err.iter_mut().for_each(|x| *x = 0.0);
+        err3.iter_mut().for_each(|x| *x = 0.0);
+        for (j, kj) in k.iter().enumerate() {
+            for q in 0..N {
+                err[q] += h * e[j] * kj[q];
+                if !e3.is_empty() {
+                    err3[q] += h * e3[j] * kj[q];
+                }
+            }
+        }
+        let en = rms(&err, &y, &stage, rtol, atol);
+        let en = if e3.is_empty() {
+            en
+        } else {
+            let e3n = rms(&err3, &y, &stage, rtol, atol);
+            let den = (en * en + 0.01 * e3n * e3n).sqrt();
+            if den > 0.0 { en * en / den } else { 0.0 }
+        };
+        if en <= 1.0 {
+            t = if last { t_end } else { t + h };
+            y.copy_from_slice(&stage);
+            k.swap(0, s - 1);
+            h *= if en > 0.0 { ctrl.accepted(en) } else { FAC_MAX };
+        } else {
+            h *= ctrl.rejected(en);
+        }
+    }
+    (y, nfev)
+}
+
+fn run() {
+    let mut rows = Vec::new();
+    for c in bench_cases() {
+        let (result, secs, runs) = timed(|| bench_run(c.problem, c.method, c.rtol, c.atol));
+        let Some(serde_json::Value::Object(mut row)) = result else {
+            eprintln!("bench_solver: case {c:?} did not run");
+            std::process::exit(1);
+        };
+        for (k, v) in [("who", "native".into()), ("problem", c.problem.into()), ("method", c.method.into())] {
+            row.insert(k.into(), v);
+        }
+        row.insert("rtol".into(), c.rtol.into());
+        row.insert("atol".into(), c.atol.into());
+        row.insert("seconds".into(), secs.into());
+        row.insert("runs".into(), runs.into());
+        let reference = ratebook::problems::by_name(c.problem).and_then(|tp| tp.reference);
+        row.insert("reference".into(), serde_json::json!(reference));
+        rows.push(serde_json::Value::Object(row));
+        // The hand-written baseline of the same method.
+        let (Some(f), Some(tab), Some(tp)) = (bench_rhs(c.problem), method(c.method).and_then(|m| m.tableau), ratebook::problems::by_name(c.problem)) else {
+            continue;
+        };
+        let y0 = tp.y0.clone();
+        let ((y, nfev), secs, runs) = match y0.len() {
+            2 => {
+                let ((y, n), s, r) = timed(|| baseline::<2>(tab, f, &y0, tp.t_end, c.rtol, c.atol));
+                ((y.to_vec(), n), s, r)
+            }
+            3 => {
+                let ((y, n), s, r) = timed(|| baseline::<3>(tab, f, &y0, tp.t_end, c.rtol, c.atol));
+                ((y.to_vec(), n), s, r)
+            }
+            _ => {
+                let ((y, n), s, r) = timed(|| baseline::<4>(tab, f, &y0, tp.t_end, c.rtol, c.atol));
+                ((y.to_vec(), n), s, r)
+            }
+        };
+        rows.push(serde_json::json!({
+            "who": "baseline", "problem": c.problem, "method": c.method, "rtol": c.rtol, "atol": c.atol,
+            "status": "finished", "y": y, "rhsEvals": nfev, "seconds": secs, "runs": runs,
+        }));
+    }
+    println!("{}", serde_json::Value::Array(rows));
+}
+
+fn plot(input: &str, output: &str) -> Result<(), Box<dyn std::error::Error>> {
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(input)?)?;
+    let rows = v["rows"].as_array().ok_or("no rows")?;
+    let problems = ["arenstorf", "lorenz", "brusselator", "oscillator"];
+    let root = SVGBackend::new(output, (1200, 900)).into_drawing_area();
+    root.fill(&WHITE)?;
+    let panels = root.split_evenly((2, 2));
+    let series: [(&str, &str, RGBColor); 5] = [
+        ("native", "bs32", RGBColor(120, 120, 120)),
+        ("native", "dp54", RGBColor(31, 119, 180)),
+        ("native", "dp853", RGBColor(214, 39, 40)),
+        ("scipy", "RK45", RGBColor(44, 160, 44)),
+        ("scipy", "DOP853", RGBColor(148, 103, 189)),
+    ];
+    for (panel, problem) in panels.iter().zip(problems) {
+        let pts = |who: &str, m: &str| -> Vec<(f64, f64)> {
+            let mut p: Vec<(f64, f64)> = rows
+                .iter()
+                .filter(|r| r["who"] == who && r["method"] == m && r["problem"] == problem)
+                .filter_map(|r| Some((r["rhsEvals"].as_f64()?, r["error"].as_f64()?.max(1e-16))))
+                .collect();
+            p.sort_by(|a, b| a.0.total_cmp(&b.0));
+            p
+        };
+        let all: Vec<(f64, f64)> = series.iter().flat_map(|(w, m, _)| pts(w, m)).collect();
+        if all.is_empty() {
+            continue;
+        }
+        let (x0, x1) = all.iter().fold((f64::MAX, f64::MIN), |(a, b), p| (a.min(p.0), b.max(p.0)));
+        let (y0, y1) = all.iter().fold((f64::MAX, f64::MIN), |(a, b), p| (a.min(p.1), b.max(p.1)));
+        let mut chart = ChartBuilder::on(panel)
+            .caption(format!("{problem}: achieved error vs rhsEvals"), ("sans-serif", 18))
+            .margin(12)
+            .x_label_area_size(36)
+            .y_label_area_size(60)
+            .build_cartesian_2d((x0 * 0.8..x1 * 1.25).log_scale(), (y0 * 0.3..y1 * 3.0).log_scale())?;
+        chart.configure_mesh().x_desc("rhsEvals").y_desc("max |y - ref|").y_label_formatter(&|v| format!("{v:.0e}")).draw()?;
+        for (who, m, color) in series {
+            let p = pts(who, m);
+            if p.is_empty() {
+                continue;
+            }
+            let label = if who == "scipy" { format!("SciPy {m}") } else { format!("ratebook {m}") };
+            chart.draw_series(LineSeries::new(p.clone(), color.stroke_width(2)))?.label(label).legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 18, y)], color.stroke_width(2))
+            });
+            chart.draw_series(p.iter().map(|&(x, y)| Circle::new((x, y), 3, color.filled())))?;
+        }
+        chart.configure_series_labels().background_style(WHITE.mix(0.8)).border_style(BLACK).draw()?;
+    }
+    root.present()?;
+    Ok(())
+}
+
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    match args.get(1).map(String::as_str) {
+        Some("plot") if args.len() == 4 => {
+            if let Err(e) = plot(&args[2], &args[3]) {
+                eprintln!("bench_solver plot: {e}");
+                std::process::exit(1);
+            }
+        }
+        _ => run(),
+    }
+}
