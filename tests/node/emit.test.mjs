@@ -154,10 +154,11 @@ function solveBothWays(sheet, settings) {
 }
 
 test("whole runs through the JS API are bit-identical with emitting on and off", () => {
-  // Every example with every explicit method; the corpus (capped in steps,
+  // Every example with most methods; the corpus (capped in steps,
   // since random rates can be stiff or blow up) with two.
   const runs = [];
-  const all = ["dp54", "dp853", "bs32", "auto", "heun"];
+  // rodas4 and radau5 call the emitted Jacobian (and rodas4 ∂f/∂t) too.
+  const all = ["dp54", "dp853", "bs32", "auto", "heun", "rodas4", "radau5"];
   for (const ex of EXAMPLES ?? []) runs.push([ex.id, ex.sheet, ex.settings, all]);
   for (const [i, { sheet }] of corpus(0xab1e, 30).entries()) runs.push([`corpus ${i}`, sheet, { to: 2, maxSteps: 3000 }, ["dp54", "heun"]]);
   let compared = 0;
