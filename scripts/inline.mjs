@@ -8,6 +8,7 @@
 // dependency order with their import lines and `export` keywords removed.
 import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
 import { spawnSync } from "node:child_process";
+import { createHash } from "node:crypto";
 import { tmpdir } from "node:os";
 import { dirname, join, normalize } from "node:path";
 
@@ -70,4 +71,11 @@ const markup = html.replace(/(<script\b[^>]*>)[\s\S]*?<\/script>/gi, "$1</script
 if (/\s(src|href)="(?!data:|#)[^"]*"/.test(markup)) {
   throw new Error("inline: an external reference is left in the single file");
 }
+// The CSP allows exactly the inlined module scripts, by their sha256, rather
+// than any inline script: injected markup could not run a script or handler.
+const hashes = [...html.matchAll(/<script type="module">([\s\S]*?)<\/script>/g)]
+  .map((m) => `'sha256-${createHash("sha256").update(m[1], "utf8").digest("base64")}'`);
+html = html.replace(/(<meta http-equiv="Content-Security-Policy" content="[^"]*?script-src 'self')( 'unsafe-inline')?/,
+  (_, head) => `${head} ${hashes.join(" ")}`);
+if (!hashes.length || !html.includes(hashes[0])) throw new Error("inline: the CSP does not hold the scripts' hashes");
 writeFileSync(out, html);

@@ -7,6 +7,8 @@
 pub mod api;
 pub mod draw;
 pub mod emit;
+#[doc(hidden)]
+pub mod fuzzing;
 pub mod problem;
 pub mod problems;
 pub mod sheet;

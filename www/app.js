@@ -15,6 +15,7 @@ import { showParams } from "./params.js";
 import { sheetStart, grid } from "./runinfo.js";
 import { autosave, loadAutosave, keepPrevious, loadPrevious, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
 import { renderAccuracy } from "./accuracy.js";
+import { initGuard, guarded } from "./guard.js";
 
 // The page exactly as it arrived, for the single-file download (captured
 // before anything below changes the document).
@@ -27,13 +28,16 @@ const EDIT_DELAY_MS = 300;
 
 const solverModule = new WebAssembly.Module(await wasmBytes());
 initSync({ module: solverModule });
+initGuard(solverModule);
 setModule(solverModule);
+// A panic in the solver restarts it and comes back as an ordinary error.
+const solveHere = guarded(solve);
 // [id, label, "adaptive" | "fixed"], `auto` first, from the solver's registry.
 METHODS = methods().map((m) => [m.id, m.adaptive ? m.name : `${m.name}, fixed h`, m.adaptive ? "adaptive" : "fixed"]);
 METHODS.sort((a, b) => (b[0] === "auto") - (a[0] === "auto"));
 setLocal({
-  solve: (m) => solve(m.sheet, m.settings),
-  compare: (m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress),
+  solve: (m) => solveHere(m.sheet, m.settings),
+  compare: guarded((m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress)),
 });
 
 const app = {
@@ -121,7 +125,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   try {
     if (!app.slowModel || !hasWorker()) {
       const t = performance.now();
-      plotRun = solve(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined });
+      plotRun = solveHere(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined });
       if (performance.now() - t > 100 || (hasWorker() && hitStepCap(plotRun))) {
         app.slowModel = true;
         plotRun = null;
@@ -130,7 +134,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
     if (!plotRun) plotRun = await inWorker({ kind: "solve", sheet, settings: plot });
     if (seq !== app.seq) return;
     if (!live) {
-      tableRun = app.slowModel ? await inWorker({ kind: "solve", sheet, settings: table }) : solve(sheet, table);
+      tableRun = app.slowModel ? await inWorker({ kind: "solve", sheet, settings: table }) : solveHere(sheet, table);
       if (seq !== app.seq) return;
     }
   } catch (e) {

@@ -181,6 +181,12 @@ pub fn model(sheet_text: &str, req: &RunRequest) -> Result<Model, ApiError> {
     let mut m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
     if let Some(params) = &req.params {
         for (name, &value) in params {
+            if !value.is_finite() {
+                return Err(ApiError::Settings(SolveError::InvalidSettings {
+                    field: "params",
+                    reason: format!("the value given for `{name}` is not a finite number"),
+                }));
+            }
             if !m.set_param(name, value) {
                 return Err(ApiError::Settings(SolveError::InvalidSettings {
                     field: "params",
@@ -200,6 +206,11 @@ pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> 
 
 /// Solve an already compiled model with `req`.
 pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
+    for (field, v) in [("max_steps", req.max_steps), ("max_output", req.max_output), ("max_events", req.max_events)] {
+        if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
+            return Err(ApiError::Settings(SolveError::InvalidSettings { field, reason: "must be a number ≥ 0".to_string() }));
+        }
+    }
     let s = settings(req);
     let (t0, y0) = (m.t0(), m.initial_state().to_vec());
     // In the page the formulas run as an emitted wasm module; elsewhere, or

@@ -24,13 +24,28 @@ const STIFF_FRACTION: f64 = 0.75;
 const NONSTIFF_RESET: u32 = 6;
 /// States larger than this count as a blow-up at once.
 const HUGE: f64 = 1e150;
+/// Hard ceilings on the caps, whatever the settings ask for, so that no
+/// request can make a run endless or its output exhaust memory: steps,
+/// output points, stored output values (points × (states + helpers)), and
+/// recorded event crossings.
+const CEILING_STEPS: u64 = 100_000_000;
+const CEILING_OUTPUT: usize = 1_000_000;
+const CEILING_VALUES: usize = 10_000_000;
+const CEILING_EVENTS: usize = 1_000_000;
 
 /// Solve `y' = f(t, y)` from `(t0, y0)` to `settings.to` with the method named
 /// in `settings`. Returns `Err` only for invalid settings or inputs; a run that
 /// fails on the way comes back as `Ok` with [`Status::Failed`] and the
 /// trajectory up to the failure.
 pub fn solve(problem: &mut dyn Problem, t0: f64, y0: &[f64], settings: &Settings) -> Result<Run, SolveError> {
-    let (m, tol, notes) = validate(problem, t0, y0, settings)?;
+    let (m, tol, notes, max_output) = validate(problem, t0, y0, settings)?;
+    let capped;
+    let settings = if max_output < settings.max_output {
+        capped = Settings { max_output, ..settings.clone() };
+        &capped
+    } else {
+        settings
+    };
     let mut d = Driver::new(problem, t0, y0, settings, m, tol);
     d.diagnostics.extend(notes);
     d.run();
@@ -46,7 +61,7 @@ fn validate(
     t0: f64,
     y0: &[f64],
     s: &Settings,
-) -> Result<(&'static MethodInfo, Tolerance, Vec<Diagnostic>), SolveError> {
+) -> Result<(&'static MethodInfo, Tolerance, Vec<Diagnostic>, usize), SolveError> {
     let m = method(&s.method).ok_or_else(|| {
         let ids: Vec<&str> = methods().iter().map(|m| m.id).collect();
         invalid("method", format!("unknown method `{}`; the methods are {}", s.method, ids.join(", ")))
@@ -94,8 +109,19 @@ fn validate(
     if s.max_steps < 1 {
         return Err(invalid("max_steps", "the step limit must be at least 1"));
     }
+    if s.max_steps > CEILING_STEPS {
+        return Err(invalid("max_steps", format!("the step limit can be at most {CEILING_STEPS}")));
+    }
     if s.max_output < 2 {
         return Err(invalid("max_output", "at least 2 output points are needed"));
+    }
+    let columns = (problem.dim() + problem.helper_names().len()).max(1);
+    let output_ceiling = (CEILING_VALUES / columns).clamp(2, CEILING_OUTPUT);
+    if s.max_output > CEILING_OUTPUT {
+        return Err(invalid("max_output", format!("at most {CEILING_OUTPUT} output points can be kept")));
+    }
+    if s.max_events > CEILING_EVENTS {
+        return Err(invalid("max_events", format!("at most {CEILING_EVENTS} event crossings can be recorded")));
     }
     for (field, v) in [("first_step", s.first_step), ("max_step", s.max_step)] {
         if let Some(h) = v {
@@ -105,8 +131,9 @@ fn validate(
         }
     }
     if let Some(at) = &s.at {
-        if at.len() > s.max_output {
-            return Err(invalid("at", format!("{} output times asked for; the limit is {}", at.len(), s.max_output)));
+        let limit = s.max_output.min(output_ceiling);
+        if at.len() > limit {
+            return Err(invalid("at", format!("{} output times asked for; the limit is {limit}", at.len())));
         }
         let (lo, hi) = (t0.min(s.to), t0.max(s.to));
         let dir = if s.to >= t0 { 1.0 } else { -1.0 };
@@ -119,7 +146,7 @@ fn validate(
             }
         }
     }
-    Ok((m, tol, notes))
+    Ok((m, tol, notes, s.max_output.min(output_ceiling)))
 }
 
 /// Running maximum and minimum of one quantity.
@@ -1071,6 +1098,9 @@ impl<'a> Driver<'a> {
         } else if self.out_t.last() != Some(&self.t) {
             let (t, y) = (self.t, self.y.clone());
             self.record(t, &y);
+            if self.out_t.len() > self.settings.max_output {
+                self.decimate();
+            }
         }
         let names: Vec<String> = self.problem.state_names().iter().chain(self.problem.helper_names()).cloned().collect();
         let extrema = self

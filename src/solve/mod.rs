@@ -80,14 +80,16 @@ pub struct Settings {
     /// run, at most `max_output` of them. When `None` (default), the run
     /// reports every accepted step.
     pub at: Option<Vec<f64>>,
-    /// Step limit (≥ 1). Default 1 000 000. The run fails with
+    /// Step limit (1 to 100 000 000). Default 1 000 000. The run fails with
     /// [`SolveError::MaxSteps`] there and keeps its partial result.
     pub max_steps: u64,
-    /// Most output points kept without `at` (≥ 2). Default 200 000. Beyond it
+    /// Most output points kept without `at` (2 to 1 000 000), and most `at`
+    /// times. Default 200 000. It is lowered to keep the stored values
+    /// (points × (states + helpers)) within 10 million. Beyond it
     /// every other point is dropped (first and last kept) and a `decimated`
     /// note says so.
     pub max_output: usize,
-    /// Most event crossings recorded (≥ 0). Default 10 000. Further `mark`
+    /// Most event crossings recorded (0 to 1 000 000). Default 10 000. Further `mark`
     /// crossings are dropped with a warning; a `stop` crossing still ends the run.
     pub max_events: usize,
     /// First step size (> 0, finite) for adaptive methods. Default `None`: the

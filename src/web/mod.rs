@@ -9,6 +9,7 @@ use crate::{api, draw};
 mod bench_emit;
 mod bench_stiff;
 mod emit;
+mod guard;
 
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
     let s = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true);
@@ -30,13 +31,11 @@ fn api_error(e: api::ApiError) -> JsValue {
     }
 }
 
-/// Report panics on the console instead of dying silently.
+/// Start-up: register the model emitter and install the panic hook.
 #[wasm_bindgen(start)]
 pub fn start() {
     emit::register();
-    std::panic::set_hook(Box::new(|info| {
-        web_sys::console::error_1(&JsValue::from_str(&format!("ratebook: internal error: {info}")));
-    }));
+    guard::install();
 }
 
 /// The crate version, shown on the page and written into saved files.
@@ -46,9 +45,14 @@ pub fn version() -> String {
 }
 
 /// Solve a sheet. Throws an `Error` with `line` and `column` for a sheet
-/// that cannot be read.
+/// that cannot be read, and a plain `Error` when `sheet` is not a string.
 #[wasm_bindgen]
-pub fn solve(sheet: &str, settings: JsValue) -> Result<JsValue, JsValue> {
+pub fn solve(sheet: JsValue, settings: JsValue) -> Result<JsValue, JsValue> {
+    guard::test_panic();
+    // Taken as a JsValue: the glue's string passing aborts the instance on a
+    // number or an object.
+    let sheet = sheet.as_string().ok_or_else(|| error_with("the sheet must be a string", &[]))?;
+    let sheet = sheet.as_str();
     let req: api::RunRequest = if settings.is_undefined() || settings.is_null() {
         api::RunRequest::default()
     } else {

@@ -1,0 +1,3 @@
+//! The sheet parser and compiler on arbitrary text.
+#![no_main]
+libfuzzer_sys::fuzz_target!(|data: &[u8]| ratebook::fuzzing::compile(data));
