@@ -7,13 +7,12 @@
 // picture of a fixed-step run, and offers a convergence study and the
 // printable report.
 import { checkAccuracy, convergenceStudy, stabilitySvg, version } from "./pkg/ratebook.js";
-import { el, fmt } from "./dom.js";
+import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
 
 /** Significant digits the page's results show (results.js prints with fmt(v, 6)). */
 export const SHOWN_DIGITS = 6;
 
-const svgUrl = (svg) => "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(svg)));
 const plainName = (s) => s.replace(/`/g, "");
 
 let state = null; // { sheet, settings, report, stability, convergence }
@@ -124,7 +123,6 @@ export function reportData() {
 }
 
 export function renderAccuracy(container, sheet, settings, run) {
-  ensureStyle();
   let rep;
   try {
     rep = checkAccuracy(sheet, { ...solverSettings(settings), shownDigits: SHOWN_DIGITS });
@@ -153,19 +151,3 @@ export function renderAccuracy(container, sheet, settings, run) {
   ].filter(Boolean));
 }
 
-let styled = false;
-function ensureStyle() {
-  if (styled) return;
-  styled = true;
-  document.head.append(el("style", {}, `
-#accuracy-view .rb-verdict { font-weight: 600; font-size: 1.05rem; }
-#accuracy-view .rb-alarm { border: 2px solid #b01c1c; background: #fdeeee; color: #5c0b0b; padding: .5rem .7rem; }
-#accuracy-view .rb-pitfall { margin: .45rem 0; padding: .4rem .6rem; border-left: 4px solid #9a7b12; background: #fbf6e6; }
-#accuracy-view .rb-pitfall.rb-alarm { border-left-color: #b01c1c; background: #fdeeee; }
-#accuracy-view .rb-pitfall.rb-note { border-left-color: #1f5fa8; background: #eef4fb; }
-#accuracy-view tr.disagrees td { color: #b01c1c; font-weight: 600; }
-#accuracy-view figure img, #accuracy-view #conv-out img { max-width: 100%; height: auto; }
-#accuracy-view details { margin: .8rem 0; }
-#accuracy-view input[type=number] { width: 8rem; }
-`));
-}

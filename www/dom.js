@@ -38,6 +38,9 @@ export function notify(message, { bad = false, sticky = false } = {}) {
 }
 
 /** A number for people: `digits` significant digits, no trailing noise. */
+/** An SVG document as a data: URL, for an <img>. */
+export const svgUrl = (svg) => "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(svg)));
+
 export function fmt(v, digits = 6) {
   if (typeof v !== "number") return String(v);
   if (!Number.isFinite(v)) return Number.isNaN(v) ? "NaN" : (v > 0 ? "∞" : "−∞");

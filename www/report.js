@@ -2,7 +2,7 @@
 // the results with their trusted digits, the verdict, the plots, the caution
 // and ratebook's version. Built as DOM (user text only through textContent),
 // printed in place, or saved as a standalone HTML file.
-import { el, download } from "./dom.js";
+import { el, download, svgUrl } from "./dom.js";
 
 const CSS = `
 .rb-report { font: 11pt/1.45 system-ui, sans-serif; color: #111; max-width: 48rem; margin: 0 auto; }
@@ -22,7 +22,6 @@ const CSS = `
 .rb-report .muted { color: #555; font-size: 9.5pt; }
 `;
 
-const svgUrl = (svg) => "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(svg)));
 
 /** The settings as rows of (name, value). */
 function settingRows(rep, settings) {
@@ -81,10 +80,10 @@ export function reportHtml(data) {
     `<style>${CSS}</style></head><body>${node.outerHTML}</body></html>`;
 }
 
-let styled = false;
-function ensureStyle() {
-  if (styled) return;
-  styled = true;
+let reportStyled = false;
+function ensureReportStyle() {
+  if (reportStyled) return;
+  reportStyled = true;
   document.head.append(el("style", {}, CSS + `
 #rb-print { display: none; }
 @media print {
@@ -95,7 +94,7 @@ function ensureStyle() {
 
 /** Print the report in place: everything else on the page is hidden while printing. */
 export function printReport(data) {
-  ensureStyle();
+  ensureReportStyle();
   document.getElementById("rb-print")?.remove();
   const holder = el("div", { id: "rb-print" }, reportNode(data));
   document.body.append(holder);
