@@ -102,21 +102,7 @@ pub struct CompareReport {
 /// The least-squares slope of `ln y` against `ln x` over the pairs where both
 /// are positive and finite; `None` with fewer than two such pairs.
 pub fn log_log_slope(x: &[f64], y: &[f64]) -> Option<f64> {
-    let pts: Vec<(f64, f64)> = x
-        .iter()
-        .zip(y)
-        .filter(|(a, b)| a.is_finite() && b.is_finite() && **a > 0.0 && **b > 0.0)
-        .map(|(a, b)| (a.ln(), b.ln()))
-        .collect();
-    if pts.len() < 2 {
-        return None;
-    }
-    let n = pts.len() as f64;
-    let mx = pts.iter().map(|p| p.0).sum::<f64>() / n;
-    let my = pts.iter().map(|p| p.1).sum::<f64>() / n;
-    let sxx: f64 = pts.iter().map(|p| (p.0 - mx).powi(2)).sum();
-    let sxy: f64 = pts.iter().map(|p| (p.0 - mx) * (p.1 - my)).sum();
-    (sxx > 0.0).then(|| sxy / sxx)
+    crate::study::convergence::fitted_order(x, y)
 }
 
 fn pick(report: &RunReport, quantity: &str, method: &str, step: Option<f64>) -> CompareRun {
