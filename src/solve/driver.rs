@@ -2,7 +2,7 @@
 //! diagnostics. It owns the stepper as a `Box<dyn Stepper>` so that a policy
 //! can swap the method mid-run.
 
-use super::control::{initial_step, PiController};
+use super::control::{initial_step, PiController, StepControl};
 use super::locate::{bracketed_root, golden_max};
 use super::methods::{method, methods, MethodInfo};
 use super::stability::{boundary_radius, dominant_eigenvalue, jacobian};
@@ -238,7 +238,7 @@ impl<'a> Driver<'a> {
         let stepper = (m.build)(dim);
         let switching = m.switching.map(|f| f());
         let mut d = Driver {
-            ctrl: PiController::new(error_order(m)),
+            ctrl: PiController::new(error_order(m), step_control(m)),
             stability_limit: stability_limit(m),
             problem,
             settings,
@@ -672,7 +672,7 @@ impl<'a> Driver<'a> {
                     });
                     self.method = next;
                     self.stepper = (next.build)(self.dim);
-                    self.ctrl = PiController::new(error_order(next));
+                    self.ctrl = PiController::new(error_order(next), step_control(next));
                     self.stability_limit = stability_limit(next);
                     self.stiff_count = 0;
                     self.nonstiff_count = 0;
@@ -1155,6 +1155,11 @@ fn error_order(m: &MethodInfo) -> u32 {
         Some(t) if t.error_order > 0 => t.error_order,
         _ => m.embedded_order.map(|o| o + 1).unwrap_or(m.order),
     }
+}
+
+/// The controller constants of a method: its tableau's, or the general ones.
+fn step_control(m: &MethodInfo) -> StepControl {
+    m.tableau.map(|t| t.control).unwrap_or(StepControl::GENERAL)
 }
 
 /// Edge of the stability region on the negative real axis (0 when unknown),
