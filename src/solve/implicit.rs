@@ -909,7 +909,7 @@ mod tests {
     #[test]
     fn stiff_references_with_a_plain_loop() {
         use crate::problems::stiff::*;
-        // References: tests/reference/stiff_reference.py (SciPy Radau rtol 1e-12).
+        // References: tests/reference/stiff_reference.py (SciPy Radau, rtol 1e-13 / 1e-12).
         let tol = Tolerance { rtol: 1e-6, atol: 1e-6 };
         let mut st: Vec<(Box<dyn Stepper>, u32)> = vec![(Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 2)), 3), (Box::new(Radau::new(2)), 3)];
         for (s, q) in st.iter_mut() {
