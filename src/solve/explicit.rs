@@ -8,19 +8,8 @@ use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use super::tableau::{ErrorEstimate, Tableau};
 use crate::problem::Problem;
 
-/// Weighted RMS norm of `e` with weights `atol + rtol·max(|y_i|, |y_new_i|)`.
-pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64 {
-    if e.is_empty() {
-        return 0.0;
-    }
-    let mut s = 0.0;
-    for ((ei, yi), zi) in e.iter().zip(y).zip(y_new) {
-        let w = tol.atol + tol.rtol * yi.abs().max(zi.abs());
-        let r = ei / w;
-        s += r * r;
-    }
-    (s / e.len() as f64).sqrt()
-}
+/// The weighted RMS norm of the error estimates, shared with the implicit methods.
+pub use super::linalg::weighted_rms;
 
 /// A stepper for one explicit tableau.
 pub struct ExplicitStepper {
