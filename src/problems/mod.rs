@@ -4,6 +4,7 @@
 
 use crate::problem::{EventSpec, NonFiniteCause, Problem};
 
+pub mod bench;
 pub mod nonstiff;
 pub mod stiff;
 

@@ -246,14 +246,14 @@ pub fn all() -> Vec<TestProblem> {
 /// The non-stiff benchmark's cases (`scripts/bench.d/solver`): Arenstorf to
 /// its period, Lorenz to t = 20, the Brusselator to t = 20 and the driven
 /// oscillator to t = 40, at rtol = atol = 1e-3, 1e-6 and 1e-9, for each
-/// adaptive explicit method. Run one with [`super::stiff::bench_run`], which
+/// adaptive explicit method. Run one with [`super::bench::bench_run`], which
 /// serves any problem of the shared set.
-pub fn bench_cases() -> Vec<super::stiff::BenchCase> {
+pub fn bench_cases() -> Vec<super::bench::BenchCase> {
     let mut v = Vec::new();
     for problem in ["arenstorf", "lorenz", "brusselator", "oscillator"] {
         for tol in [1e-3, 1e-6, 1e-9] {
             for method in ["bs32", "dp54", "dp853"] {
-                v.push(super::stiff::BenchCase { problem, method, rtol: tol, atol: tol });
+                v.push(super::bench::BenchCase { problem, method, rtol: tol, atol: tol });
             }
         }
     }

@@ -176,18 +176,7 @@ fn robertson_to(name: &'static str, t_end: f64, reference: &[f64; 3]) -> TestPro
     }
 }
 
-/// One case of the stiff benchmark (`scripts/bench.d/stiff`).
-#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
-pub struct BenchCase {
-    /// Name in the shared set.
-    pub problem: &'static str,
-    /// Registry id of the method.
-    pub method: &'static str,
-    /// Relative tolerance.
-    pub rtol: f64,
-    /// Absolute tolerance.
-    pub atol: f64,
-}
+pub use super::bench::{bench_run, BenchCase};
 
 /// The stiff benchmark's cases: Van der Pol μ = 1000 (atol = rtol) and
 /// Robertson to 1e5 (atol = 1e-4·rtol, for the small `y2`), for each stiff
@@ -204,33 +193,4 @@ pub fn bench_cases() -> Vec<BenchCase> {
         }
     }
     v
-}
-
-/// Run one benchmark case through the driver (no extrema, output at every
-/// step, as SciPy does) and report its status, end state and work counts as
-/// JSON. `None` for an unknown problem or invalid settings.
-pub fn bench_run(problem: &str, method: &str, rtol: f64, atol: f64) -> Option<serde_json::Value> {
-    let p = super::by_name(problem)?;
-    let mut model = (p.make)();
-    let settings = crate::solve::Settings {
-        method: method.to_string(),
-        to: p.t_end,
-        tol: crate::solve::Tolerance { rtol, atol },
-        extrema: false,
-        ..crate::solve::Settings::default()
-    };
-    let run = crate::solve::solve(model.as_mut(), p.t0, &p.y0, &settings).ok()?;
-    let y: Vec<f64> = run.states.iter().map(|s| s.last().copied().unwrap_or(f64::NAN)).collect();
-    let status = match &run.status {
-        crate::solve::Status::Finished => "finished".to_string(),
-        crate::solve::Status::Stopped { .. } => "stopped".to_string(),
-        crate::solve::Status::Failed(e) => e.code().to_string(),
-    };
-    let switches = run.diagnostics.iter().filter(|d| d.code == "method-switch").count();
-    let mut v = serde_json::to_value(run.stats).ok()?;
-    let obj = v.as_object_mut()?;
-    obj.insert("status".into(), status.into());
-    obj.insert("y".into(), y.into());
-    obj.insert("switches".into(), switches.into());
-    Some(v)
 }
