@@ -2,7 +2,7 @@
 // of work around the solver.
 import { initSync, solve, compareMethods, methods, version } from "./pkg/ratebook.js";
 import { wasmBytes } from "./pkg/wasm_bytes.js";
-import { $, el, notify, download } from "./dom.js";
+import { $, el, notify, download, timed } from "./dom.js";
 import { EXAMPLES, exampleById } from "./examples.js";
 import { initEditor, setProblems, refreshEditor, readOnly } from "./editor.js";
 import { initRunner, setModule, setLocal, inWorker, hasWorker } from "./runner.js";
@@ -125,7 +125,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   try {
     if (!app.slowModel || !hasWorker()) {
       const t = performance.now();
-      plotRun = solveHere(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined });
+      plotRun = timed("solve", () => solveHere(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined }));
       if (performance.now() - t > 100 || (hasWorker() && hitStepCap(plotRun))) {
         app.slowModel = true;
         plotRun = null;
@@ -144,16 +144,17 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   }
   app.good = { sheet, settings: s, plotRun, tableRun: tableRun ?? app.good?.tableRun, kept: keptSettings() };
   app.shownSeq = seq;
-  setProblems([]);
+  if (!live || app.hadProblem) setProblems([]);
+  app.hadProblem = false;
   $("sheet-state").textContent = "";
-  showRun(plotRun, { resetView });
-  showSummary(plotRun, { method: s.method });
+  timed("time-view", () => showRun(plotRun, { resetView, live }));
+  timed("summary", () => showSummary(plotRun, { method: s.method }));
   $("summary").dataset.settings = JSON.stringify(s);
   document.body.dataset.shownExample = app.exampleId;
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
-  showFieldRun(sheet, s, plotRun);
+  showFieldRun(sheet, s, plotRun, { live });
   if (!live) {
     showParams(sheet, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
@@ -163,6 +164,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
 
 function showProblem(e) {
   const p = { line: e.line, column: e.column, message: String(e.message ?? e) };
+  app.hadProblem = true;
   setProblems([p]);
   $("sheet-state").textContent = app.good ? "showing the last good result" : "";
 }
@@ -173,11 +175,39 @@ function edited() {
   editTimer = setTimeout(() => { app.slowModel = false; solveAndShow(); save(); }, EDIT_DELAY_MS);
 }
 
-function paramMoved(sheet, live) {
+// A slider drag: input events come faster than frames, so the sheet is
+// rewritten at once but solved and drawn at most once per animation frame,
+// and never while the previous live solve is still out (a slow model's
+// solves go to the worker). Letting go solves and shows everything.
+const live = { frame: 0, busy: false, again: false };
+
+function paramMoved(sheet, isLive) {
   $("sheet").value = sheet;
+  if (isLive) {
+    if (!live.frame) live.frame = requestAnimationFrame(liveFrame);
+    return;
+  }
+  cancelAnimationFrame(live.frame);
+  live.frame = 0;
+  live.again = false;
   refreshEditor();
-  solveAndShow({ live });
-  if (!live) save();
+  solveAndShow();
+  save();
+}
+
+async function liveFrame() {
+  live.frame = 0;
+  if (live.busy) { live.again = true; return; }
+  live.busy = true;
+  const start = performance.now();
+  try {
+    timed("editor", () => refreshEditor({ sameLines: true }));
+    await solveAndShow({ live: true });
+  } finally {
+    performance.measure("rb:live-frame", { start, end: performance.now() });
+    live.busy = false;
+    if (live.again) { live.again = false; live.frame = requestAnimationFrame(liveFrame); }
+  }
 }
 
 // ---- keeping work

@@ -69,6 +69,7 @@ export function clearComparison(message) {
 /** Offer the run's quantities in the picker. */
 export function setCompareQuantities(names) {
   const sel = $("compare-state");
+  if ([...sel.options].map((o) => o.value).join("\n") === names.join("\n")) return;
   const keep = sel.value;
   sel.replaceChildren(...names.map((n) => el("option", { value: n }, n)));
   if (names.includes(keep)) sel.value = keep;

@@ -37,10 +37,26 @@ export function notify(message, { bad = false, sticky = false } = {}) {
   if (!sticky) noticeTimer = setTimeout(() => { n.hidden = true; }, 6000);
 }
 
-/** A number for people: `digits` significant digits, no trailing noise. */
 /** An SVG document as a data: URL, for an <img>. */
 export const svgUrl = (svg) => "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(svg)));
 
+let measures = 0;
+/**
+ * Run `fn` and record its duration as the User Timing measure `rb:NAME`
+ * (performance.getEntriesByName), which the page benchmark reads. The
+ * buffer is emptied now and then so that a long session does not grow it.
+ */
+export function timed(name, fn) {
+  const start = performance.now();
+  try {
+    return fn();
+  } finally {
+    if (++measures > 5000) { performance.clearMeasures(); measures = 0; }
+    performance.measure(`rb:${name}`, { start, end: performance.now() });
+  }
+}
+
+/** A number for people: `digits` significant digits, no trailing noise. */
 export function fmt(v, digits = 6) {
   if (typeof v !== "number") return String(v);
   if (!Number.isFinite(v)) return Number.isNaN(v) ? "NaN" : (v > 0 ? "∞" : "−∞");

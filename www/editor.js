@@ -6,8 +6,12 @@ import { $, el } from "./dom.js";
 const sheet = () => $("sheet");
 let problems = [];
 
-/** Redraw the gutter and the mirror for the current text and problems. */
-export function refreshEditor() {
+/**
+ * Redraw the gutter and the mirror for the current text and problems.
+ * `sameLines`: only numbers changed (a slider), so the rows keep their
+ * places and the scroll need not be read back, which would force a layout.
+ */
+export function refreshEditor({ sameLines = false } = {}) {
   const lines = sheet().value.split("\n");
   const byLine = new Map(problems.map((p) => [p.line, p]));
   const gutter = $("gutter");
@@ -25,7 +29,7 @@ export function refreshEditor() {
   marks.replaceChildren(m);
   // The read-only copy (embed mode, print) always holds the current sheet.
   $("sheet-readonly").textContent = sheet().value;
-  syncScroll();
+  if (!sameLines) syncScroll();
 }
 
 function syncScroll() {

@@ -3,10 +3,13 @@
 // curve. A click starts a new curve through that point, integrated forward
 // and backward within the window.
 import { fieldView } from "./pkg/ratebook.js";
-import { $, el } from "./dom.js";
+import { $, el, timed } from "./dom.js";
 import { Plot, registerPlot, drawPlot, canvasPoint, toData, insideFrame } from "./plotkit.js";
 
-const fv = { sheet: "", settings: null, run: null, axes: [], starts: [], window: null, report: null, frame: null, dirty: true, error: "" };
+// window: the one the user fixed (by adding curves), else null for
+// auto-ranging; held: the window kept while a slider moves, so that the
+// arrows stay put under the moving curve (fitted again on release).
+const fv = { sheet: "", settings: null, run: null, axes: [], starts: [], window: null, held: null, report: null, frame: null, dirty: true, error: "" };
 const CELLS = 24;
 
 function axesFor(run) {
@@ -22,7 +25,8 @@ function compute() {
   if (!fv.run) return;
   const [x, y] = axesFor(fv.run);
   try {
-    fv.report = fieldView(fv.sheet, fv.settings, { x, y, window: fv.window ?? undefined, cells: CELLS, starts: fv.starts });
+    const window = fv.window ?? fv.held ?? undefined;
+    fv.report = timed("field-numbers", () => fieldView(fv.sheet, fv.settings, { x, y, window, cells: CELLS, starts: fv.starts }));
     fv.error = "";
   } catch (e) {
     fv.report = null;
@@ -49,15 +53,21 @@ function describeField() {
 export function drawField() {
   if ($("field-view").hidden) return;
   if (fv.dirty) compute();
-  fv.frame = drawPlot("field-plot");
+  fv.frame = timed("field-draw", () => drawPlot("field-plot"));
+  // Test hook: the window shown, in data units.
+  if (fv.report) $("field-plot").dataset.window = JSON.stringify(fv.report.window);
   $("field-note").textContent = fv.error
     ? `The field cannot be drawn: ${fv.error}`
     : `${fv.report?.note ?? ""} Click anywhere to start a solution curve through that point.`;
 }
 
-/** A new run of the model: redraw if the view is shown. */
-export function showFieldRun(sheet, settings, run) {
+/**
+ * A new run of the model: redraw if the view is shown. While a slider moves
+ * (`live`) the window stays where it was.
+ */
+export function showFieldRun(sheet, settings, run, { live = false } = {}) {
   const sameStates = fv.run && fv.run.states.join() === run.states.join();
+  fv.held = live && sameStates ? (fv.held ?? fv.report?.window?.slice() ?? null) : null;
   fv.sheet = sheet;
   fv.settings = settings;
   fv.run = run;

@@ -34,8 +34,11 @@ export function drawTime() {
   clearHover();
 }
 
-/** Show a new run; keep the zoom unless `resetView`. */
-export function showRun(run, { resetView = false } = {}) {
+/**
+ * Show a new run; keep the zoom unless `resetView`. A `live` run (a slider
+ * moving) is drawn only when the view is shown; showing it draws it.
+ */
+export function showRun(run, { resetView = false, live = false } = {}) {
   const prev = tv.run;
   tv.run = run;
   const names = [...run.states, ...run.helpers];
@@ -48,6 +51,7 @@ export function showRun(run, { resetView = false } = {}) {
     tv.view = null;
   }
   if (resetView) tv.view = null;
+  if (live && $("time-view").hidden) return;
   drawTime();
 }
 

@@ -10,7 +10,6 @@ use serde::{Deserialize, Serialize};
 use super::compare::invalid;
 use super::{ApiError, RunRequest};
 use crate::problem::Problem;
-use crate::sheet;
 use crate::solve;
 
 /// A window of the field view: `[x0, x1, y0, y1]` in data units.
@@ -84,53 +83,114 @@ pub struct Polyline {
     pub y: Vec<f64>,
 }
 
-/// The zero contour of `g` sampled on an `(m+1) × (m+1)` node grid over `w`,
-/// by marching squares, as NaN-separated segments.
+/// The zero contour of `g` sampled on an `(m+1) × (m+1)` node grid over `w`
+/// (row-major, `values[j*(m+1) + i]`), by marching squares, joined into
+/// polylines separated by NaN pairs (so that a plot strokes a few long lines,
+/// not one short segment per cell).
 pub fn zero_contour(values: &[f64], w: &Window, m: usize) -> (Vec<f64>, Vec<f64>) {
     let (dx, dy) = ((w[1] - w[0]) / m as f64, (w[3] - w[2]) / m as f64);
     let node = |i: usize, j: usize| values[j * (m + 1) + i];
-    let (mut xs, mut ys) = (Vec::new(), Vec::new());
-    let mut seg = |a: (f64, f64), b: (f64, f64)| {
-        xs.extend_from_slice(&[a.0, b.0, f64::NAN]);
-        ys.extend_from_slice(&[a.1, b.1, f64::NAN]);
+    let at = |i: usize, j: usize| (w[0] + i as f64 * dx, w[2] + j as f64 * dy);
+    // Edges are numbered once for the whole grid: horizontal (i, j)–(i+1, j)
+    // first, then vertical (i, j)–(i, j+1). Each edge's crossing is computed
+    // once, from its lower node, so that neighbouring cells share it exactly.
+    let horizontal = m * (m + 1);
+    let h_edge = |i: usize, j: usize| j * m + i;
+    let v_edge = |i: usize, j: usize| horizontal + j * (m + 1) + i;
+    let crossing = |e: usize| -> (f64, f64) {
+        let ((i0, j0), (i1, j1)) = if e < horizontal {
+            let (i, j) = (e % m, e / m);
+            ((i, j), (i + 1, j))
+        } else {
+            let (i, j) = ((e - horizontal) % (m + 1), (e - horizontal) / (m + 1));
+            ((i, j), (i, j + 1))
+        };
+        let (a, b) = (node(i0, j0), node(i1, j1));
+        let s = a / (a - b);
+        let (pa, pb) = (at(i0, j0), at(i1, j1));
+        (pa.0 + s * (pb.0 - pa.0), pa.1 + s * (pb.1 - pa.1))
     };
+    // Segments of the contour as pairs of edges.
+    let mut segments: Vec<[usize; 2]> = Vec::new();
     for j in 0..m {
         for i in 0..m {
-            // Corners counter-clockwise from bottom-left.
+            // Corners counter-clockwise from bottom-left; edge k joins corner k and k+1.
             let c = [node(i, j), node(i + 1, j), node(i + 1, j + 1), node(i, j + 1)];
             if c.iter().any(|v| !v.is_finite()) {
                 continue;
             }
-            let pos = [(i, j), (i + 1, j), (i + 1, j + 1), (i, j + 1)]
-                .map(|(a, b)| (w[0] + a as f64 * dx, w[2] + b as f64 * dy));
-            // Crossing points on the four edges (edge k joins corner k and k+1).
-            let mut cross: Vec<(usize, (f64, f64))> = Vec::with_capacity(4);
-            for k in 0..4 {
-                let (a, b) = (c[k], c[(k + 1) % 4]);
-                if (a < 0.0) != (b < 0.0) {
-                    let s = a / (a - b);
-                    let (pa, pb) = (pos[k], pos[(k + 1) % 4]);
-                    cross.push((k, (pa.0 + s * (pb.0 - pa.0), pa.1 + s * (pb.1 - pa.1))));
-                }
-            }
+            let edges = [h_edge(i, j), v_edge(i + 1, j), h_edge(i, j + 1), v_edge(i, j)];
+            let cross: Vec<usize> = (0..4).filter(|&k| (c[k] < 0.0) != (c[(k + 1) % 4] < 0.0)).map(|k| edges[k]).collect();
             match cross.len() {
-                2 => seg(cross[0].1, cross[1].1),
+                2 => segments.push([cross[0], cross[1]]),
                 4 => {
                     // A saddle cell: pair the crossings by the sign at the centre.
                     let centre = c.iter().sum::<f64>() / 4.0;
                     if (centre < 0.0) == (c[0] < 0.0) {
-                        seg(cross[0].1, cross[1].1);
-                        seg(cross[2].1, cross[3].1);
+                        segments.extend([[cross[0], cross[1]], [cross[2], cross[3]]]);
                     } else {
-                        seg(cross[1].1, cross[2].1);
-                        seg(cross[3].1, cross[0].1);
+                        segments.extend([[cross[1], cross[2]], [cross[3], cross[0]]]);
                     }
                 }
                 _ => {}
             }
         }
     }
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    for chain in chains(&segments) {
+        for e in chain {
+            let p = crossing(e);
+            xs.push(p.0);
+            ys.push(p.1);
+        }
+        xs.push(f64::NAN);
+        ys.push(f64::NAN);
+    }
     (xs, ys)
+}
+
+/// Join segments that share an end (each end is shared by at most two) into
+/// chains of ends: open chains first walked from a free end, then closed
+/// loops, which repeat their first end at the close.
+fn chains(segments: &[[usize; 2]]) -> Vec<Vec<usize>> {
+    let mut at: std::collections::HashMap<usize, Vec<usize>> = std::collections::HashMap::new();
+    for (k, s) in segments.iter().enumerate() {
+        for &e in s {
+            at.entry(e).or_default().push(k);
+        }
+    }
+    let mut used = vec![false; segments.len()];
+    let mut out = Vec::new();
+    let walk = |first: usize, from: usize, used: &mut [bool]| {
+        let mut chain = vec![from];
+        let (mut seg, mut end) = (first, from);
+        loop {
+            used[seg] = true;
+            let s = segments[seg];
+            end = if s[0] == end { s[1] } else { s[0] };
+            chain.push(end);
+            match at[&end].iter().find(|&&k| !used[k]) {
+                Some(&k) => seg = k,
+                None => break,
+            }
+        }
+        chain
+    };
+    // Open chains start where an end belongs to one segment only.
+    let mut free: Vec<usize> = at.iter().filter(|(_, v)| v.len() == 1).map(|(&e, _)| e).collect();
+    free.sort_unstable();
+    for e in free {
+        let k = at[&e][0];
+        if !used[k] {
+            out.push(walk(k, e, &mut used));
+        }
+    }
+    for k in 0..segments.len() {
+        if !used[k] {
+            out.push(walk(k, segments[k][0], &mut used));
+        }
+    }
+    out
 }
 
 /// The nullclines of a phase plane: where `x' = 0` and where `y' = 0`, on an
@@ -230,11 +290,12 @@ pub fn auto_window(x: &[f64], y: &[f64]) -> Window {
     [x0, x1, y0, y1]
 }
 
-/// Run `model` from `(t, y)` to `to` with the adaptive reference method and a
-/// step cap; the trajectory as far as it got (a failed run keeps its partial result).
-fn curve(model: &mut sheet::Model, t: f64, y: &[f64], to: f64, tol: solve::Tolerance) -> solve::Run {
+/// Run `model` from `(t, y)` to `to` with the default adaptive method (it
+/// switches to a stiff one where needed) and a step cap; the trajectory as
+/// far as it got (a failed run keeps its partial result).
+fn curve(model: &mut dyn Problem, t: f64, y: &[f64], to: f64, tol: solve::Tolerance) -> solve::Run {
     let settings = solve::Settings {
-        method: "dp54".into(),
+        method: "auto".into(),
         to,
         tol,
         max_steps: CURVE_STEP_CAP,
@@ -281,11 +342,15 @@ fn join(back: &solve::Run, fwd: &solve::Run, ix: Option<usize>, iy: usize) -> Po
 /// with nullclines; plus a curve through each requested start, forward and
 /// backward within the window.
 pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<FieldReport, ApiError> {
-    let mut model = super::model(sheet, base)?;
+    let model = super::model(sheet, base)?;
     let t0 = model.t0();
     let y0 = model.initial_state().to_vec();
     let to = base.to.filter(|v| v.is_finite()).ok_or_else(|| invalid("to", "the end of the run must be a finite number"))?;
     let names: Vec<String> = model.state_names().to_vec();
+    let independent = model.independent().to_string();
+    // In the page the formulas run as an emitted wasm module (as in `solve`);
+    // elsewhere on the interpreter, with identical results.
+    let mut model = crate::emit::EmittedModel::new(model);
     // Curves are drawn, not tabulated: a few digits beyond the pixels do.
     let tol = solve::Tolerance {
         rtol: base.rtol.filter(|v| *v > 0.0).unwrap_or(1e-6).max(1e-5),
@@ -302,8 +367,9 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
         }
     };
     if names.len() == 1 {
-        let main = curve(&mut model, t0, &y0, to, tol);
+        // The run itself is needed only to frame the window.
         let w = req.window.and_then(valid).unwrap_or_else(|| {
+            let main = curve(&mut model, t0, &y0, to, tol);
             let mut w = auto_window(&main.t, &main.states[0]);
             (w[0], w[1]) = (t0.min(to), t0.max(to));
             w
@@ -317,13 +383,13 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
         }
         return Ok(FieldReport {
             kind: "slope",
-            x_label: model.independent().to_string(),
+            x_label: independent.clone(),
             y_label: names[0].clone(),
             window: w,
             field,
             nullclines: vec![],
             curves,
-            note: format!("Slope field of {}' over ({}, {}).", names[0], model.independent(), names[0]),
+            note: format!("Slope field of {}' over ({}, {}).", names[0], independent, names[0]),
         });
     }
     let ix = index(&req.x, 0)?;
@@ -331,8 +397,10 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
     if ix == iy {
         return Err(invalid("field", "pick two different states for the phase plane"));
     }
-    let main = curve(&mut model, t0, &y0, to, tol);
-    let w = req.window.and_then(valid).unwrap_or_else(|| auto_window(&main.states[ix], &main.states[iy]));
+    let w = req.window.and_then(valid).unwrap_or_else(|| {
+        let main = curve(&mut model, t0, &y0, to, tol);
+        auto_window(&main.states[ix], &main.states[iy])
+    });
     let plane = Plane { t: t0, base: y0.clone(), ix, iy };
     let field = phase_samples(&mut model, &plane, &w, cells);
     let nulls = nullclines(&mut model, &plane, &w, 48, (&names[ix], &names[iy]));
@@ -458,6 +526,9 @@ mod tests {
         assert!(pa.len() > 40 && pb.len() > 40);
         // Linear interpolation is exact for linear functions.
         assert!(pa.iter().all(|(x, y)| (x - y).abs() < 1e-12));
+        // Each is one polyline across the window, not a segment per cell.
+        assert_eq!(a.x.iter().filter(|v| v.is_nan()).count(), 1);
+        assert_eq!(b.x.iter().filter(|v| v.is_nan()).count(), 1);
         assert!(pb.iter().all(|(_, y)| (y - 1.0).abs() < 1e-12));
         let f = phase_samples(&mut p, &plane, &W, 5);
         assert_eq!(f.len(), 100);
@@ -479,6 +550,9 @@ mod tests {
         let (xs, ys) = zero_contour(&v, &w, m);
         let r: Vec<f64> = xs.iter().zip(&ys).filter(|(x, _)| x.is_finite()).map(|(x, y)| x.hypot(*y)).collect();
         assert!(r.len() > 100);
+        // One closed loop: a single piece whose last point is its first.
+        assert_eq!(xs.iter().filter(|v| v.is_nan()).count(), 1);
+        assert_eq!((xs[0], ys[0]), (xs[xs.len() - 2], ys[ys.len() - 2]));
         assert!(r.iter().all(|r| (r - 1.0).abs() < 0.01), "{r:?}");
     }
 }

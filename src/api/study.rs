@@ -125,7 +125,7 @@ pub fn stability_svg(method: &str, title: &str, hl: &[(f64, f64)], width: u32, h
     let pts: Vec<C64> = hl.iter().map(|&(re, im)| C64::new(re, im)).collect();
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))).into_drawing_area();
+        let root = crate::draw::text::measured(SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))));
         crate::draw::study::stability_region(&root, title, &f, &pts).map_err(|e| invalid("drawing", e.0))?;
     }
     Ok(svg)
@@ -144,7 +144,7 @@ pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String,
         .collect();
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))).into_drawing_area();
+        let root = crate::draw::text::measured(SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))));
         convergence(&root, &lines).map_err(|e| invalid("drawing", e.0))?;
     }
     Ok(svg)

@@ -11,6 +11,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::prelude::*;
 
 pub mod study;
+pub mod text;
 
 /// Why a plot could not be drawn.
 #[derive(Debug)]
@@ -392,23 +393,20 @@ where
         None => draw_field(root, &strokes)?,
     }
 
+    let mut legend = Vec::new();
     for l in &fig.lines {
         let c = colour(l.colour);
         let style = c.stroke_width(l.width.max(1));
         let pts = l.x.iter().zip(&l.y).map(|(&x, &y)| (axis_value(x, fig.log_x), axis_value(y, fig.log_y)));
         let runs = clip_polyline(pts.clone(), (x0, x1), (y0, y1));
-        for (k, run) in runs.into_iter().enumerate() {
-            let anno = if l.dashed {
-                chart.draw_series(DashedLineSeries::new(run, 6, 4, style))?
+        if !runs.is_empty() && !l.label.is_empty() {
+            legend.push(text::LegendEntry { label: &l.label, colour: c, width: l.width, dashed: l.dashed });
+        }
+        for run in runs {
+            if l.dashed {
+                chart.draw_series(DashedLineSeries::new(run, 6, 4, style))?;
             } else {
-                chart.draw_series(LineSeries::new(run, style))?
-            };
-            if k == 0 && !l.label.is_empty() {
-                let dashed = l.dashed;
-                anno.label(l.label.as_str()).legend(move |(x, y)| {
-                    let end = if dashed { x + 8 } else { x + 18 };
-                    PathElement::new(vec![(x, y), (end, y)], style)
-                });
+                chart.draw_series(LineSeries::new(run, style))?;
             }
         }
         if l.dots {
@@ -461,15 +459,8 @@ where
         }
     }
 
-    if fig.lines.iter().any(|l| !l.label.is_empty()) {
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .label_font(("sans-serif", 12).into_font().color(&INK))
-            .background_style(WHITE.mix(0.85))
-            .border_style(RGBColor(0xb0, 0xb0, 0xb0))
-            .draw()?;
-    }
+    let area = (frame.left as i32, frame.top as i32, frame.right as i32, frame.bottom as i32);
+    text::legend(root, &legend, area, text::Corner::UpperRight)?;
     root.present()?;
     Ok(frame)
 }
@@ -540,7 +531,7 @@ where
 pub fn figure_svg(fig: &Figure, width: u32, height: u32) -> Result<String, DrawError> {
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (width, height)).into_drawing_area();
+        let root = text::measured(SVGBackend::with_string(&mut svg, (width, height)));
         figure(&root, fig)?;
     }
     Ok(svg)

@@ -129,13 +129,12 @@ where
         .y_label_formatter(&|v| format!("{v:.0e}"))
         .light_line_style(WHITE)
         .draw()?;
+    let mut legend = Vec::new();
     for (i, l) in lines.iter().enumerate() {
         let color = PALETTE[i % PALETTE.len()];
         let p: Vec<(f64, f64)> = l.h.iter().zip(l.error).filter(|(h, e)| good(**h, **e)).map(|(h, e)| (*h, *e)).collect();
-        chart
-            .draw_series(LineSeries::new(p.clone(), color.stroke_width(2)).point_size(4))?
-            .label(l.label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 16, y)], color.stroke_width(2)));
+        chart.draw_series(LineSeries::new(p.clone(), color.stroke_width(2)).point_size(4))?;
+        legend.push(super::text::LegendEntry { label: l.label, colour: color, width: 2, dashed: false });
         if let (Some(order), Some(&(hf, ef))) = (l.order, p.iter().min_by(|a, b| a.0.total_cmp(&b.0))) {
             let guide = |h: f64| ef * (h / hf).powf(order);
             let (ga, gb) = (hf, hx1 / 1.5);
@@ -149,14 +148,8 @@ where
             chart.draw_series(seg.windows(2).step_by(2).map(|w| PathElement::new(vec![w[0], w[1]], color.mix(0.5))))?;
         }
     }
-    if !lines.is_empty() {
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(WHITE.mix(0.85))
-            .border_style(BLACK)
-            .draw()?;
-    }
+    let (px, py) = chart.plotting_area().get_pixel_range();
+    super::text::legend(root, &legend, (px.start, py.start, px.end, py.end), super::text::Corner::LowerRight)?;
     root.present()?;
     Ok(())
 }

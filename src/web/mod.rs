@@ -178,7 +178,6 @@ impl Plot {
     /// Draw on `canvas` at its pixel size. Returns the frame
     /// `[left, top, right, bottom, x0, x1, y0, y1]` (log10 units on log axes).
     pub fn draw(&self, canvas: web_sys::HtmlCanvasElement) -> Result<Vec<f64>, JsValue> {
-        use plotters::prelude::IntoDrawingArea;
         let ctx = canvas
             .get_context("2d")
             .ok()
@@ -204,7 +203,7 @@ impl Plot {
             ctx.set_line_width(1.0);
             ctx.stroke();
         };
-        let frame = draw::figure_with(&backend.into_drawing_area(), &self.fig, Some(&mut stroke))
+        let frame = draw::figure_with(&draw::text::measured(backend), &self.fig, Some(&mut stroke))
             .map_err(|e| error_with(&e.0, &[]))?;
         Ok(frame.to_array().to_vec())
     }
