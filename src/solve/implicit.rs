@@ -16,7 +16,8 @@
 
 use nalgebra::Complex;
 
-use super::linalg::{rates, shifted, weight, weighted_rms, Derivatives, Factored};
+use super::explicit::weighted_rms;
+use super::linalg::{rates, shifted, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -531,7 +532,7 @@ impl Radau {
             let mut sum = 0.0;
             for q in 0..n {
                 let dw = [self.dw_real[q], self.dw_complex[q].re, self.dw_complex[q].im];
-                let scale = weight(tol, y[q], y[q]);
+                let scale = tol.weight(y[q], y[q]);
                 for i in 0..3 {
                     self.w[i * n + q] += dw[i];
                     let dz = tm[i][0] * dw[0] + tm[i][1] * dw[1] + tm[i][2] * dw[2];
@@ -653,6 +654,10 @@ impl Stepper for Radau {
                 refined?;
                 error = weighted_rms(&self.err, y, y_new, tol);
             }
+        }
+        if !error.is_finite() {
+            // A non-finite norm (a zero weight) rejects the step.
+            error = f64::INFINITY;
         }
         self.rejected = error > 1.0;
         self.trial.0.copy_from_slice(y);

@@ -1,6 +1,7 @@
 //! Dense linear algebra for the implicit methods: Jacobians (exact, or by
 //! finite differences when the model has none), iteration matrices and their
-//! LU factorization (nalgebra's partial-pivoting LU), and the weighted norm.
+//! LU factorization (nalgebra's partial-pivoting LU). The weighted error norm
+//! is the explicit stepper's [`super::explicit::weighted_rms`].
 //!
 //! Storage follows [`crate::problem`]: a Jacobian is row-major,
 //! `jac[i * n + j] = ∂f_i/∂y_j`.
@@ -9,7 +10,7 @@
 
 use nalgebra::{ComplexField, DMatrix, DVectorViewMut, Dyn, LU};
 
-use super::stepper::{Stats, StepFault, Tolerance};
+use super::stepper::{Stats, StepFault};
 use crate::problem::Problem;
 
 /// `∂f/∂y` and `∂f/∂t` at one point, exact when the model provides them and
@@ -183,26 +184,6 @@ impl<T: ComplexField<RealField = f64>> Factored<T> {
 /// `n × n` Jacobian.
 pub fn shifted(jac: &[f64], n: usize, diag: f64, scale: f64) -> impl Fn(usize, usize) -> f64 + '_ {
     move |i, j| if i == j { diag } else { 0.0 } - scale * jac[i * n + j]
-}
-
-/// The error weight of component `i`: `atol + rtol·max(|y_i|, |y_new_i|)`.
-pub fn weight(tol: &Tolerance, y: f64, y_new: f64) -> f64 {
-    tol.atol + tol.rtol * y.abs().max(y_new.abs())
-}
-
-/// Weighted RMS norm of `e` with the weights of [`weight`]; `∞` when `e`
-/// holds a non-finite value.
-pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64 {
-    if e.is_empty() {
-        return 0.0;
-    }
-    let sum: f64 = e.iter().zip(y.iter().zip(y_new)).map(|(ei, (a, b))| (ei / weight(tol, *a, *b)).powi(2)).sum();
-    let norm = (sum / e.len() as f64).sqrt();
-    if norm.is_finite() {
-        norm
-    } else {
-        f64::INFINITY
-    }
 }
 
 #[cfg(test)]
