@@ -3,13 +3,18 @@
 //!
 //! Both sides are called through `&mut dyn Problem`, the way a solver calls
 //! them. Inputs go through `black_box` so nothing is folded away. Prints a
-//! markdown table and writes `target/bench/sheet.json`.
+//! markdown table and writes `target/bench/sheet.json`, to which the script
+//! adds the same formulas in wasm under Node.
 
 use ratebook::problem::Problem;
 use ratebook::problems::FnProblem;
 use ratebook::sheet::compile;
 use std::hint::black_box;
 use std::time::Instant;
+
+#[path = "bench_sheet/chain.rs"]
+mod chain;
+use chain::{chain_rates, chain_sheet, CHAIN_PARAMS};
 
 /// Nanoseconds per call of `rhs` for each problem, the best of several
 /// short rounds (short, so that some of them run on a quiet machine); the problems take turns within each round, so a change in the
@@ -37,25 +42,11 @@ struct Case {
     y: Vec<f64>,
 }
 
-fn chain_sheet(n: usize) -> String {
-    // A rod of n thermal nodes, heated at one end by a pulsing source and
-    // losing heat to the surroundings (our own scenario).
-    let mut s = String::from("k = 0.8\nh = 0.05\nTa = 20\np = 3\nw = 0.7\n");
-    for i in 1..=n {
-        let left = if i == 1 { "T1".to_string() } else { format!("T{}", i - 1) };
-        let right = if i == n { format!("T{n}") } else { format!("T{}", i + 1) };
-        let src = if i == 1 { " + p*(1 + 0.5*sin(w*t))" } else { "" };
-        s += &format!("dT{i}/dt = k*({left} - 2*T{i} + {right}) - h*(T{i} - Ta){src}\n");
-        s += &format!("T{i}(0) = 20\n");
-    }
-    s
-}
-
 fn main() {
     let calls = 20_000;
     let (a, big_a, g) = (black_box(0.004), black_box(1.5), black_box(9.81));
     let xp = black_box(0.3);
-    let (k, h, ta, p, w) = (black_box(0.8), black_box(0.05), black_box(20.0), black_box(3.0), black_box(0.7));
+    let chain_params = CHAIN_PARAMS.map(black_box);
     let n = 20;
     let cases = vec![
         Case {
@@ -86,15 +77,7 @@ fn main() {
         Case {
             name: format!("{n}-state thermal chain"),
             sheet: chain_sheet(n),
-            hand: Box::new(FnProblem::new(&vec!["T"; n], move |t, y: &[f64], dy: &mut [f64]| {
-                let n = y.len();
-                for i in 0..n {
-                    let l = y[i.saturating_sub(1)];
-                    let r = y[(i + 1).min(n - 1)];
-                    dy[i] = k * (l - 2.0 * y[i] + r) - h * (y[i] - ta);
-                }
-                dy[0] += p * (1.0 + 0.5 * (w * t).sin());
-            })),
+            hand: Box::new(FnProblem::new(&vec!["T"; n], move |t, y: &[f64], dy: &mut [f64]| chain_rates(chain_params, t, y, dy))),
             y: (0..n).map(|i| 20.0 + i as f64).collect(),
         },
     ];
@@ -119,17 +102,17 @@ fn main() {
         let ratio = ts / th;
         println!("| `{}` | {:.2} | {:.2} | {:.2} |{}", c.name, ts, th, ratio, if agree { "" } else { " values differ!" });
         rows.push(format!(
-            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"steps\": {}, \"agree\": {}}}",
+            "{{\"formula\": {:?}, \"sheet_ns\": {:.3}, \"rust_ns\": {:.3}, \"ratio\": {:.3}, \"tape_len\": {}, \"steps\": {}, \"dim\": {}, \"agree\": {}}}",
             c.name,
             ts,
             th,
             ratio,
             model.rhs_program().insts().len(),
             model.rhs_program().steps(),
+            c.y.len(),
             agree
         ));
     }
-    println!("\nNative only; the in-page (wasm under Node) column is not measured yet.");
     let json = format!("{{\"native\": [\n  {}\n], \"wasm\": null}}\n", rows.join(",\n  "));
     let _ = std::fs::create_dir_all("target/bench");
     if let Err(e) = std::fs::write("target/bench/sheet.json", json) {

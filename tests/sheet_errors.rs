@@ -39,10 +39,13 @@ const CORPUS: &[(&str, usize, usize, &str)] = &[
     ("dx/dt = -x\nxx(0) = 1", 2, 1, "did you mean \"x\""),
     // duplicate definitions
     ("k = 1\nk = 2\ndx/dt = -k*x\nx(0) = 1", 2, 1, "\"k\" is defined twice; the first definition is on line 1"),
-    ("dx/dt = -x\ndx/dt = x\nx(0) = 1", 2, 1, "\"x\" is defined twice"),
+    ("dx/dt = -x\ndx/dt = x\nx(0) = 1", 2, 1, "\"x\" has two rate equations; the first is on line 1"),
+    ("x' = -x\n  dx/dt = x\nx(0) = 1", 2, 3, "\"x\" has two rate equations"),
     ("x = 3\ndx/dt = -x\nx(0) = 1", 2, 1, "\"x\" is defined twice"),
     ("dx/dt = -x\nx = 3\nx(0) = 1", 2, 1, "defined twice"),
-    ("x'' = -x\nx' = 1\nx(0) = 1\nx'(0) = 0", 2, 1, "\"x\" is defined twice"),
+    ("x'' = -x\nx' = 1\nx(0) = 1\nx'(0) = 0", 2, 1, "\"x'\" clashes with the second-order equation for \"x\" on line 1 (\"x''\"), which already makes \"x\" and \"x'\" its states"),
+    ("v = 2\ny' = v\n  y''' = -y\ny(0) = 1", 3, 3, "\"y'''\" clashes with the first-order equation for \"y\" on line 2 (\"y'\"), which already makes \"y\" its state"),
+    ("d2x/dt2 = -x\nx(0) = 1\nx'(0) = 0\nx'' = 0", 4, 1, "\"x\" has two rate equations; the first is on line 1"),
     ("dx/dt = -x\nt = 3\nx(0) = 1", 2, 1, "independent variable"),
     // helper cycles
     ("a = b\nb = a\ndx/dt = a*x\nx(0) = 1", 1, 1, "a -> b -> a"),

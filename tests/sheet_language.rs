@@ -311,3 +311,49 @@ fn programs_are_well_formed_and_documented_layout_holds() {
         assert!(i.a < me && i.b < me);
     }
 }
+
+#[test]
+fn small_powers_become_multiplies_and_sqrt() {
+    use ratebook::sheet::ir::Op;
+    let ops = |expr: &str| -> Vec<Op> {
+        let m = model(&format!("dx/dt = {expr}\nx(0) = 1"));
+        m.rhs_program().insts().iter().map(|i| i.op).collect()
+    };
+    assert_eq!(ops("x^3"), [Op::Sq, Op::Mul]);
+    assert_eq!(ops("x^4"), [Op::Sq, Op::Sq]);
+    assert_eq!(ops("x^-1"), [Op::CDiv]);
+    assert_eq!(ops("x^0.5"), [Op::AddC, Op::Sqrt]);
+    assert_eq!(ops("x^-2.5"), [Op::Sq, Op::AddC, Op::Sqrt, Op::Mul, Op::CDiv]);
+    assert_eq!(ops("x^4.5"), [Op::PowC]);
+    assert_eq!(ops("x^1.25"), [Op::PowC]);
+    // The pieces are shared: x^1.5 and x^0.5 take one sqrt, x^3 and x^2 one square.
+    let both = ops("x^1.5 + x^0.5 + x^3 + x^2");
+    assert_eq!(both.iter().filter(|&&o| o == Op::Sqrt).count(), 1);
+    assert_eq!(both.iter().filter(|&&o| o == Op::Sq).count(), 1);
+    // Values (analytic), with the special cases pow gives (IEEE 754-2019, 9.2.1).
+    assert_eq!(value("x^3", 3.0, 0.0), 27.0);
+    assert_eq!(value("x^-2", 4.0, 0.0), 0.0625);
+    assert_eq!(value("x^1.5", 4.0, 0.0), 8.0);
+    assert_eq!(value("x^-0.5", 0.25, 0.0), 2.0);
+    assert_eq!(value("x^0", f64::NAN, 0.0), 1.0);
+    assert_eq!(value("x^-1", 0.0, 0.0), f64::INFINITY);
+    assert_eq!(value("x^-3", -0.0, 0.0), f64::NEG_INFINITY);
+    let root_of_minus_zero = value("x^0.5", -0.0, 0.0);
+    assert!(root_of_minus_zero == 0.0 && root_of_minus_zero.is_sign_positive());
+    assert!(value("x^1.5", -1.0, 0.0).is_nan());
+    // Within a few ulp of powf (the rewrite's accuracy, see sheet::dag::SmallPower).
+    for x in [0.3, 1.7, 12.5, 1e-5, 3e7] {
+        for c in [3.0, 4.0, -1.0, -4.0, 0.5, 1.5, 2.5, 3.5, -0.5, -3.5] {
+            let got = value(&format!("x^{c}"), x, 0.0);
+            let want = f64::powf(x, c);
+            assert!((got - want).abs() <= 4.0 * f64::EPSILON * want.abs(), "{x}^{c}: {got} against powf {want}");
+        }
+    }
+    // Derivatives follow the power rule: d/dx x^1.5 at 0 is 0, not 0·∞.
+    let mut m = model("dx/dt = x^1.5\nx(0) = 1");
+    let mut j = [f64::NAN];
+    m.jacobian(0.0, &[0.0], &mut j);
+    assert_eq!(j, [0.0]);
+    m.jacobian(0.0, &[4.0], &mut j);
+    assert_eq!(j, [3.0]);
+}

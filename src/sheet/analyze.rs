@@ -124,6 +124,8 @@ pub fn analyze(lines: Vec<Line>) -> Result<Sheet, ModelError> {
     let mut states: Vec<State> = Vec::new();
     let mut defs: Vec<Def> = Vec::new();
     let mut pending_inits: Vec<&Line> = Vec::new();
+    // The line and order of the rate equation of each state's base name.
+    let mut equations: HashMap<&str, (usize, usize)> = HashMap::new();
     let mut events = Vec::new();
     let placeholder = || Expr { col: 0, text: String::new(), rpn: Vec::new(), names: Vec::new() };
     let mut claim = |name: &str, line: usize, col: usize, kind: Name, names: &mut HashMap<String, Name>| {
@@ -142,6 +144,11 @@ pub fn analyze(lines: Vec<Line>) -> Result<Sheet, ModelError> {
         match &l.stmt {
             Stmt::Rate { state, col, order, expr, .. } => {
                 let base = states.len();
+                if let Some(&(first_line, first_order)) = equations.get(state.as_str()) {
+                    let kind = K::RateGivenTwice { state: state.clone(), order: *order, first_line, first_order };
+                    return Err(err(l.line, *col, kind));
+                }
+                equations.insert(state, (l.line, *order));
                 if base + order > MAX_STATES {
                     return Err(err(l.line, *col, K::TooManyStates { limit: MAX_STATES }));
                 }

@@ -1,6 +1,12 @@
 //! The expression graph: hash-consed nodes, constant folding, symbolic
 //! derivatives and scheduling into [`Program`]s.
 //!
+//! Small integer and half-integer powers (`x^3`, `x^-1`, `x^1.5`, …) stay
+//! single nodes in the graph, so that their derivatives follow the power
+//! rule (`d x^1.5 = 1.5 x^0.5`, zero at `x = 0` where a product rule over
+//! `x·sqrt(x)` would give `0·∞`), and become multiplies, a division and
+//! `sqrt` when they are scheduled; see [`SmallPower`].
+//!
 //! Nodes are created children first, so a node's id is always larger than
 //! its operands' ids; every pass over the graph is a plain loop over ids and
 //! nothing recurses, whatever the depth of an expression.
@@ -141,7 +147,8 @@ impl Graph {
     /// a constant operand moved into the immediate. Only rewrites that give
     /// bit-identical IEEE results are made (`x - c` is `x + (-c)`, `x * 1` is
     /// `x`, `x ^ 2` is `x * x`, …), so values agree exactly with a plain
-    /// evaluation of the written expression.
+    /// evaluation of the written expression. (Other small powers are written
+    /// as multiplies only when scheduled; see [`SmallPower`].)
     pub fn binary(&mut self, op: Op, a: Id, b: Id) -> Id {
         use Op::*;
         let (ca, cb) = (self.as_const(a), self.as_const(b));
@@ -184,6 +191,8 @@ impl Graph {
             MulC | DivC if c == 1.0 => a,
             MulC if c == -1.0 => self.unary(Neg, a),
             PowC if c == 1.0 => a,
+            // `pow(x, 0)` is 1 for every x, NaN included.
+            PowC if c == 0.0 => self.constant(1.0),
             PowC if c == 2.0 => self.raw(Sq, a, a, 0.0),
             _ => self.raw(op, a, a, c),
         }
@@ -477,11 +486,24 @@ impl Graph {
             };
         }
         let first = (1 + dim + n_live + consts.len()) as u32;
-        let mut insts = Vec::new();
+        let mut insts: Vec<Inst> = Vec::new();
+        // Equal instructions share one slot: the graph is hash-consed, so
+        // only the pieces of expanded powers can repeat (`x^1.5` next to
+        // `x^0.5` or `x^2`).
+        let mut made: HashMap<(Op, u32, u32, u64), u32> = HashMap::new();
+        let mut emit = |op: Op, a: u32, b: u32, c: f64| -> u32 {
+            *made.entry((op, a, b, c.to_bits())).or_insert_with(|| {
+                insts.push(Inst { op, a, b, c });
+                first + insts.len() as u32 - 1
+            })
+        };
         for (id, &s) in seen.iter().enumerate() {
             if let (true, Node::Op { op, a, b, c }) = (s, self.nodes[id]) {
-                slot[id] = first + insts.len() as u32;
-                insts.push(Inst { op, a: slot[a as usize], b: slot[b as usize], c });
+                let (a, b) = (slot[a as usize], slot[b as usize]);
+                slot[id] = match (op, small_power(c)) {
+                    (Op::PowC, Some(power)) => power.emit(a, &mut emit),
+                    _ => emit(op, a, b, c),
+                };
             }
         }
         let outputs = roots.iter().map(|&r| slot[r as usize]).collect();
@@ -494,3 +516,70 @@ impl Graph {
     }
 }
 
+
+/// A power `x^c` that scheduling writes as multiplies and `sqrt`: `c` is an
+/// integer or half-integer with `0.5 ≤ |c| ≤ 4`, other than `1` and `2`
+/// (`x^2` is already a square in the graph, `x^1` is `x` and `x^0` is `1`).
+///
+/// `x^n` for a whole `n` is `x·x` (2), `(x·x)·x` (3) or `(x·x)·(x·x)` (4);
+/// a half adds `· sqrt(x + 0)` (alone for `x^0.5`), where `+ 0` turns `-0`
+/// into `+0` as `pow` does; a negative power is `1 / x^|c|`. Each is within a
+/// few units in the last place of the correctly rounded power wherever the
+/// result is a normal number; the exceptions are where `x^|c|` overflows
+/// although `x^c` is a subnormal (`0` instead), and `x = -inf` with a
+/// half-integer power (NaN, where `pow` gives `+inf` or `+0`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct SmallPower {
+    /// The whole part of `|c|`, `0 ..= 4`.
+    pub whole: u8,
+    /// Whether `|c|` has a half.
+    pub half: bool,
+    /// Whether `c` is negative.
+    pub negative: bool,
+}
+
+/// The [`SmallPower`] for the exponent `c`, if it is one.
+pub fn small_power(c: f64) -> Option<SmallPower> {
+    let m = c.abs();
+    let twice = 2.0 * m;
+    if !(twice == twice.trunc() && (0.5..=4.0).contains(&m)) || c == 1.0 || c == 2.0 {
+        return None;
+    }
+    Some(SmallPower { whole: m.trunc() as u8, half: m.fract() != 0.0, negative: c < 0.0 })
+}
+
+impl SmallPower {
+    /// Write the power of the value in slot `x` with `emit(op, a, b, c)`,
+    /// which appends an instruction (or finds an equal one) and returns its
+    /// slot; returns the slot of the power.
+    pub fn emit(self, x: u32, emit: &mut impl FnMut(Op, u32, u32, f64) -> u32) -> u32 {
+        let whole = match self.whole {
+            0 => None,
+            1 => Some(x),
+            2 => Some(emit(Op::Sq, x, x, 0.0)),
+            3 => {
+                let s = emit(Op::Sq, x, x, 0.0);
+                Some(emit(Op::Mul, s, x, 0.0))
+            }
+            _ => {
+                let s = emit(Op::Sq, x, x, 0.0);
+                Some(emit(Op::Sq, s, s, 0.0))
+            }
+        };
+        let root = self.half.then(|| {
+            let z = emit(Op::AddC, x, x, 0.0);
+            emit(Op::Sqrt, z, z, 0.0)
+        });
+        let p = match (whole, root) {
+            (Some(w), Some(r)) => emit(Op::Mul, w, r, 0.0),
+            (Some(w), None) => w,
+            (None, Some(r)) => r,
+            (None, None) => x,
+        };
+        if self.negative {
+            emit(Op::CDiv, p, p, 1.0)
+        } else {
+            p
+        }
+    }
+}

@@ -54,12 +54,26 @@ pub enum ModelErrorKind {
         /// Which states there are of that name, or a close state name.
         suggestion: Option<String>,
     },
-    /// A name defined twice (also a rate given twice).
+    /// A name defined twice.
     DuplicateDefinition {
         /// The name.
         name: String,
         /// Line of the first definition.
         first_line: usize,
+    },
+    /// A second rate equation for a state that already has one: the same
+    /// equation twice (`x' = …` on two lines), or two orders for one state,
+    /// as in `x'' = …` and `x' = …`, where the second-order equation already
+    /// makes `x` and `x'` its states.
+    RateGivenTwice {
+        /// The state's base name, without primes.
+        state: String,
+        /// The order of the equation here (`2` for `x''`).
+        order: usize,
+        /// Line of the first equation for the state.
+        first_line: usize,
+        /// The order of the first equation.
+        first_order: usize,
     },
     /// Definitions that depend on each other in a circle.
     HelperCycle {
@@ -215,6 +229,26 @@ impl ModelErrorKind {
             }
             DuplicateDefinition { name, first_line } => {
                 format!("\"{name}\" is defined twice; the first definition is on line {first_line}")
+            }
+            RateGivenTwice { state, order, first_line, first_order } => {
+                let lhs = |k: usize| format!("{state}{}", "'".repeat(k));
+                if order == first_order {
+                    format!("\"{state}\" has two rate equations; the first is on line {first_line}; keep one of the two")
+                } else {
+                    let states: Vec<String> = (0..*first_order).map(|k| format!("\"{}\"", lhs(k))).collect();
+                    let nth = ["first", "second", "third", "fourth"].get(first_order.wrapping_sub(1)).copied();
+                    let what = match nth {
+                        Some(w) => format!("{w}-order equation"),
+                        None => format!("equation of order {first_order}"),
+                    };
+                    let its = if *first_order == 1 { "its state" } else { "its states" };
+                    format!(
+                        "\"{}\" clashes with the {what} for \"{state}\" on line {first_line} (\"{}\"), which already makes {} {its}; a state has one rate equation, so keep one of the two",
+                        lhs(*order),
+                        lhs(*first_order),
+                        states.join(" and "),
+                    )
+                }
             }
             HelperCycle { names } => {
                 let mut ring = names.clone();

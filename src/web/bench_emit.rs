@@ -20,6 +20,9 @@ use crate::problems::FnProblem;
 use crate::sheet::{compile, Model};
 use crate::solve::Settings;
 
+#[path = "../../examples/bench_sheet/chain.rs"]
+mod chain;
+
 type Rates = fn(f64, &[f64], &mut [f64]);
 
 /// A benchmark case: a sheet and the same rates hand-written.
@@ -42,6 +45,10 @@ fn growth(x: f64, y: &[f64], dy: &mut [f64]) {
 fn swing(t: f64, y: &[f64], dy: &mut [f64]) {
     dy[0] = y[1];
     dy[1] = -9.81 * y[0].sin() - 0.1 * y[1] * y[1].abs() + 0.2 * t.cos();
+}
+
+fn thermal(t: f64, y: &[f64], dy: &mut [f64]) {
+    chain::chain_rates(chain::CHAIN_PARAMS, t, y, dy);
 }
 
 /// Masses in the 20-state model.
@@ -112,6 +119,8 @@ fn cases() -> Vec<Case> {
         },
         Case { name: "orbit (4 states, restricted three-body)", sheet: ORBIT.into(), rust: arenstorf_rhs, h: 1e-6 },
         Case { name: "carts (20 states)", sheet: carts_sheet(), rust: carts, h: 1e-5 },
+        // The 20-state model of the native sheet benchmark (examples/bench_sheet.rs).
+        Case { name: "20-state thermal chain", sheet: chain::chain_sheet(20), rust: thermal, h: 1e-3 },
     ]
 }
 
