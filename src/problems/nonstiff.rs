@@ -87,8 +87,10 @@ pub fn arenstorf_rhs(_t: f64, y: &[f64], dy: &mut [f64]) {
     let mu = ARENSTORF_MU;
     let mp = 1.0 - mu;
     let (x, z, vx, vz) = (y[0], y[1], y[2], y[3]);
-    let r1 = ((x + mu) * (x + mu) + z * z).powf(1.5);
-    let r2 = ((x - mp) * (x - mp) + z * z).powf(1.5);
+    // Distances to the two bodies cubed, d^(3/2) written as d·√d.
+    let d1 = (x + mu) * (x + mu) + z * z;
+    let d2 = (x - mp) * (x - mp) + z * z;
+    let (r1, r2) = (d1 * d1.sqrt(), d2 * d2.sqrt());
     dy[0] = vx;
     dy[1] = vz;
     dy[2] = x + 2.0 * vz - mp * (x + mu) / r1 - mu * (x - mp) / r2;

@@ -28,9 +28,14 @@ pub struct PiController {
     alpha: f64,
     beta: f64,
     inv_k: f64,
-    err_prev: f64,
+    /// `ln err_prev`: with it each step costs one `ln` and one `exp`
+    /// instead of two powers.
+    ln_err_prev: f64,
     rejected: bool,
 }
+
+/// `ln 1e-4`, the starting `ln err_prev`.
+const LN_ERR_START: f64 = -9.210340371976184;
 
 /// Safety factor on the predicted step.
 pub const SAFETY: f64 = 0.9;
@@ -44,24 +49,27 @@ impl PiController {
     pub fn new(k: u32) -> Self {
         let k = k.max(1) as f64;
         let beta = 0.2 / k;
-        PiController { alpha: 1.0 / k - 0.75 * beta, beta, inv_k: 1.0 / k, err_prev: 1e-4, rejected: false }
+        PiController { alpha: 1.0 / k - 0.75 * beta, beta, inv_k: 1.0 / k, ln_err_prev: LN_ERR_START, rejected: false }
     }
 
     /// Forget the history (after an event, a switch or a change of method).
     pub fn reset(&mut self) {
-        self.err_prev = 1e-4;
+        self.ln_err_prev = LN_ERR_START;
         self.rejected = false;
     }
 
     /// The factor for the next step after an accepted step with error `err`.
     pub fn accepted(&mut self, err: f64) -> f64 {
+        let ln_err = err.ln();
         let fac = if err <= 0.0 {
             FAC_MAX
         } else {
-            (SAFETY * err.powf(-self.alpha) * self.err_prev.powf(self.beta)).clamp(FAC_MIN, FAC_MAX)
+            // safety · err^(-α) · err_prev^β
+            (SAFETY * (self.beta * self.ln_err_prev - self.alpha * ln_err).exp()).clamp(FAC_MIN, FAC_MAX)
         };
         let fac = if self.rejected { fac.min(1.0) } else { fac };
-        self.err_prev = err.max(1e-4);
+        // err_prev = max(err, 1e-4); f64::max also drops the -inf of ln(0).
+        self.ln_err_prev = ln_err.max(LN_ERR_START);
         self.rejected = false;
         fac
     }

@@ -289,12 +289,14 @@ impl<'a> Driver<'a> {
     }
 
     fn record(&mut self, t: f64, y: &[f64]) {
-        let h = self.helpers_at(t, y);
+        if self.n_helpers > 0 {
+            self.problem.helpers(t, y, &mut self.helpers_buf);
+        }
         self.out_t.push(t);
         for (col, v) in self.out_y.iter_mut().zip(y) {
             col.push(*v);
         }
-        for (col, v) in self.out_h.iter_mut().zip(&h) {
+        for (col, v) in self.out_h.iter_mut().zip(&self.helpers_buf) {
             col.push(*v);
         }
     }
@@ -580,12 +582,13 @@ impl<'a> Driver<'a> {
                     self.y.copy_from_slice(&y_new);
                 }
             }
-            self.norms.push(inf_norm(&self.y));
+            let norm = inf_norm(&self.y);
+            self.norms.push(norm);
             if self.norms.len() > 64 {
                 self.norms.drain(..32);
             }
-            if inf_norm(&self.y) > HUGE {
-                self.fail(SolveError::BlowUp { t: self.t, magnitude: inf_norm(&self.y) });
+            if norm > HUGE {
+                self.fail(SolveError::BlowUp { t: self.t, magnitude: norm });
                 break;
             }
             if self.n_switches > 0 {
@@ -865,8 +868,13 @@ impl<'a> Driver<'a> {
             stop = self.events_in_step(h, t_next, y_new);
         }
         let t_end = stop.map(|(_, ts)| ts).unwrap_or(t_next);
-        let mut y_end = vec![0.0; self.dim];
-        self.dense_at(t_end, h, t_next, y_new, &mut y_end);
+        // The state where the step ends: at a stop event, from the dense output.
+        let stop_y = stop.map(|_| {
+            let mut v = vec![0.0; self.dim];
+            self.dense_at(t_end, h, t_next, y_new, &mut v);
+            v
+        });
+        let y_end = stop_y.as_deref().unwrap_or(y_new);
         // `at` output
         if let Some(at) = &self.settings.at {
             let mut ys = vec![0.0; self.dim];
@@ -885,7 +893,7 @@ impl<'a> Driver<'a> {
         } else {
             let step_index = self.stats.steps;
             if stop.is_some() || t_next == self.settings.to || step_index % self.stride == 0 {
-                self.record(t_end, &y_end);
+                self.record(t_end, y_end);
                 if self.out_t.len() >= self.settings.max_output {
                     self.decimate();
                 }
@@ -894,7 +902,7 @@ impl<'a> Driver<'a> {
         if self.settings.extrema {
             self.peaks_in_step(h, t_end, t_next, y_new);
         }
-        stop.map(|(e, ts)| (e, ts, y_end))
+        stop.zip(stop_y).map(|((e, ts), y)| (e, ts, y))
     }
 
     fn events_in_step(&mut self, h: f64, t_next: f64, y_new: &[f64]) -> Option<(usize, f64)> {

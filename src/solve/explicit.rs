@@ -15,31 +15,55 @@ pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64
     }
     let mut s = 0.0;
     for ((ei, yi), zi) in e.iter().zip(y).zip(y_new) {
-        let w = tol.atol + tol.rtol * yi.abs().max(zi.abs());
-        let r = ei / w;
+        let r = ei / tol.weight(*yi, *zi);
         s += r * r;
     }
     (s / e.len() as f64).sqrt()
 }
 
+/// The non-zero entries `(j, w_j)` of a weight vector.
+fn sparse(w: &[f64]) -> Vec<(usize, f64)> {
+    w.iter().enumerate().filter(|(_, x)| **x != 0.0).map(|(j, x)| (j, *x)).collect()
+}
+
+/// `Σ_j w_j k_j[q]` over the sparse weights `w`, with the slopes stored
+/// stage-major (`k_j[q] = k[j·dim + q]`).
+#[inline]
+fn combine(k: &[f64], dim: usize, q: usize, w: &[(usize, f64)]) -> f64 {
+    w.iter().fold(0.0, |acc, &(j, a)| acc + a * k[j * dim + q])
+}
+
 /// A stepper for one explicit tableau.
-pub struct ExplicitStepper {
+///
+/// The stage slopes live in one stage-major buffer and every combination of
+/// them (stage arguments, `y_new`, the error estimate) runs over the non-zero
+/// coefficients only, component by component, so that a small system costs
+/// little more than its rate evaluations. `N > 0` fixes the number of states
+/// at compile time (the loops over the components unroll); `N = 0` takes it
+/// at run time. [`ExplicitStepper::boxed`] picks the right one.
+pub struct ExplicitStepper<const N: usize = 0> {
     tab: &'static Tableau,
     fsal: bool,
-    /// Stage slopes: the method's stages, then any extra dense-output stages.
-    k: Vec<Vec<f64>>,
-    a: Vec<Vec<f64>>,
+    dim: usize,
+    /// Stage slopes, stage-major: the method's stages, then any extra
+    /// dense-output stages; slope `i` is `k[i·dim .. (i+1)·dim]`.
+    k: Vec<f64>,
+    /// Non-zero `a_ij` of every stage row (the extra dense stages included).
+    rows: Vec<Vec<(usize, f64)>>,
     c: Vec<f64>,
-    /// Extra dense stages (c, a over all earlier stages).
-    extra: Vec<(f64, Vec<f64>)>,
+    /// Number of extra dense stages.
+    extra: usize,
+    /// Non-zero weights `b_i`.
+    b: Vec<(usize, f64)>,
     /// Dense weights p[i][j] (θ^(j+1)) over all stages.
     p: Vec<Vec<f64>>,
-    e: Vec<f64>,
-    e3: Vec<f64>,
+    /// Non-zero weights of the error estimate (and of the order-3 difference
+    /// of the blended estimate).
+    e: Vec<(usize, f64)>,
+    e3: Vec<(usize, f64)>,
     /// Stage arguments of the stiffness pair.
     g_pair: [Vec<f64>; 2],
     stage: Vec<f64>,
-    err: Vec<f64>,
     /// Start, end and step of the last successful attempt.
     y0: Vec<f64>,
     y1: Vec<f64>,
@@ -57,8 +81,26 @@ pub struct ExplicitStepper {
     r: Vec<Vec<f64>>,
 }
 
+/// Largest system size with its own compiled stepper.
+const FIXED_MAX: usize = 4;
+
 impl ExplicitStepper {
-    /// A stepper for `tab` on a system of `dim` states.
+    /// The stepper for `tab` on a system of `dim` states: one compiled for
+    /// that size when `dim ≤ 4`, else the general one.
+    pub fn boxed(tab: &'static Tableau, dim: usize) -> Box<dyn Stepper> {
+        match dim {
+            1 => Box::new(ExplicitStepper::<1>::new(tab, dim)),
+            2 => Box::new(ExplicitStepper::<2>::new(tab, dim)),
+            3 => Box::new(ExplicitStepper::<3>::new(tab, dim)),
+            FIXED_MAX => Box::new(ExplicitStepper::<FIXED_MAX>::new(tab, dim)),
+            _ => Box::new(ExplicitStepper::<0>::new(tab, dim)),
+        }
+    }
+}
+
+impl<const N: usize> ExplicitStepper<N> {
+    /// A stepper for `tab` on a system of `dim` states (`dim` must equal `N`
+    /// when `N > 0`).
     pub fn new(tab: &'static Tableau, dim: usize) -> Self {
         let s = tab.stages();
         let fsal = tab.fsal();
@@ -70,25 +112,26 @@ impl ExplicitStepper {
             ErrorEstimate::Embedded { b_hat } => (tab.b.iter().zip(b_hat.iter()).map(|(b, bh)| b - bh).collect(), Vec::new()),
             ErrorEstimate::Blended { e5, e3 } => (e5.to_vec(), e3.to_vec()),
         };
-        let mut a: Vec<Vec<f64>> = tab.a.iter().map(|r| r.to_vec()).collect();
+        let mut rows: Vec<Vec<(usize, f64)>> = tab.a.iter().map(|r| sparse(r)).collect();
         let mut c = tab.c.to_vec();
         for (ci, ai) in &extra {
             c.push(*ci);
-            a.push(ai.clone());
+            rows.push(sparse(ai));
         }
         ExplicitStepper {
             tab,
             fsal,
-            k: vec![vec![0.0; dim]; n],
-            a,
+            dim,
+            k: vec![0.0; n * dim],
+            rows,
             c,
-            extra,
+            extra: extra.len(),
+            b: sparse(tab.b),
             p,
-            e,
-            e3,
+            e: sparse(&e),
+            e3: sparse(&e3),
             g_pair: [vec![0.0; dim], vec![0.0; dim]],
             stage: vec![0.0; dim],
-            err: vec![0.0; dim],
             y0: vec![0.0; dim],
             y1: vec![0.0; dim],
             t0: 0.0,
@@ -106,17 +149,23 @@ impl ExplicitStepper {
         self.tab
     }
 
+    /// The number of states: the constant `N` when it is fixed.
+    #[inline(always)]
+    fn n(&self) -> usize {
+        if N > 0 {
+            N
+        } else {
+            self.dim
+        }
+    }
+
     /// Evaluate stage `i` from `y0` (the first `i` slopes must be ready).
     fn eval_stage(&mut self, problem: &mut dyn Problem, i: usize, stats: &mut Stats) -> Result<(), StepFault> {
-        let h = self.h;
-        self.stage.copy_from_slice(&self.y0);
-        for (j, &aij) in self.a[i].iter().enumerate() {
-            if aij != 0.0 {
-                let kj = &self.k[j];
-                for (s, kv) in self.stage.iter_mut().zip(kj) {
-                    *s += h * aij * kv;
-                }
-            }
+        let (h, dim) = (self.h, self.n());
+        let (done, rest) = self.k.split_at_mut(i * dim);
+        let row = &self.rows[i];
+        for q in 0..dim {
+            self.stage[q] = self.y0[q] + h * combine(done, dim, q, row);
         }
         if let Some((pi, pj)) = self.tab.stiffness_pair {
             if i == pi {
@@ -125,35 +174,61 @@ impl ExplicitStepper {
                 self.g_pair[1].copy_from_slice(&self.stage);
             }
         }
-        let (t, ci) = (self.t0, self.c[i]);
-        problem.rhs(t + ci * h, &self.stage, &mut self.k[i]);
+        let ki = &mut rest[..dim];
+        problem.rhs(self.t0 + self.c[i] * h, &self.stage, ki);
         stats.rhs_evals += 1;
-        if self.k[i].iter().all(|v| v.is_finite()) {
+        if ki.iter().all(|v| v.is_finite()) {
             Ok(())
         } else {
             Err(StepFault::NonFinite)
         }
     }
 
-    /// `h Σ w_i k_i` into `self.err`.
-    fn combine(&mut self, w_is_e3: bool) {
-        let w = if w_is_e3 { &self.e3 } else { &self.e };
-        self.err.iter_mut().for_each(|x| *x = 0.0);
-        for (wi, ki) in w.iter().zip(&self.k) {
-            if *wi != 0.0 {
-                for (x, kv) in self.err.iter_mut().zip(ki) {
-                    *x += self.h * wi * kv;
-                }
+    /// The weighted RMS norm of the local error estimate of the last attempt
+    /// (`None` without an estimate), in one pass over the components.
+    fn error_norm(&self, tol: &Tolerance) -> Option<f64> {
+        let (h, dim) = (self.h, self.n());
+        let blended = match &self.tab.error {
+            ErrorEstimate::None => return None,
+            ErrorEstimate::Embedded { .. } => false,
+            ErrorEstimate::Blended { .. } => true,
+        };
+        if dim == 0 {
+            return Some(0.0);
+        }
+        let (mut s5, mut s3) = (0.0, 0.0);
+        for q in 0..dim {
+            let w = tol.weight(self.y0[q], self.y1[q]);
+            let r = h * combine(&self.k, dim, q, &self.e) / w;
+            s5 += r * r;
+            if blended {
+                let r3 = h * combine(&self.k, dim, q, &self.e3) / w;
+                s3 += r3 * r3;
             }
         }
+        let e5 = (s5 / dim as f64).sqrt();
+        if !blended {
+            return Some(e5);
+        }
+        // e5² / sqrt(e5² + 0.01 e3²), as in `dop853`.
+        let e3 = (s3 / dim as f64).sqrt();
+        let den = (e5 * e5 + 0.01 * e3 * e3).sqrt();
+        Some(if den > 0.0 { e5 * e5 / den } else { 0.0 })
+    }
+
+    /// Hairer's estimate `|h| ‖k_j − k_i‖ / ‖g_j − g_i‖` of `|h·λ|` from the
+    /// stiffness pair `(i, j)` of the last attempt.
+    fn stiffness_estimate(&self, h: f64) -> Option<f64> {
+        let (i, j) = self.tab.stiffness_pair?;
+        let dim = self.n();
+        let (ki, kj) = (&self.k[i * dim..(i + 1) * dim], &self.k[j * dim..(j + 1) * dim]);
+        let num: f64 = kj.iter().zip(ki).map(|(a, b)| (a - b) * (a - b)).sum();
+        let den: f64 = self.g_pair[1].iter().zip(&self.g_pair[0]).map(|(a, b)| (a - b) * (a - b)).sum();
+        (den > 0.0).then(|| h.abs() * (num / den).sqrt())
     }
 }
 
-fn diff_norm(a: &[f64], b: &[f64]) -> f64 {
-    a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt()
-}
-
-impl Stepper for ExplicitStepper {
+impl<const N: usize> Stepper for ExplicitStepper<N> {
     fn attempt(
         &mut self,
         problem: &mut dyn Problem,
@@ -165,11 +240,12 @@ impl Stepper for ExplicitStepper {
         stats: &mut Stats,
     ) -> Result<Attempt, StepFault> {
         let s = self.tab.stages();
+        let dim = self.n();
         if self.accepted {
             // Reuse f(t, y) from the end of the accepted step when we have it.
             match self.end {
                 Some(e) => {
-                    self.k.swap(0, e);
+                    self.k.copy_within(e * dim..(e + 1) * dim, 0);
                     self.first_ready = true;
                 }
                 None => self.first_ready = false,
@@ -182,9 +258,10 @@ impl Stepper for ExplicitStepper {
         self.end = None;
         self.y0.copy_from_slice(y);
         if !self.first_ready {
-            problem.rhs(t, y, &mut self.k[0]);
+            let k0 = &mut self.k[..dim];
+            problem.rhs(t, y, k0);
             stats.rhs_evals += 1;
-            if !self.k[0].iter().all(|v| v.is_finite()) {
+            if !k0.iter().all(|v| v.is_finite()) {
                 return Err(StepFault::NonFinite);
             }
             self.first_ready = true;
@@ -194,13 +271,8 @@ impl Stepper for ExplicitStepper {
             self.eval_stage(problem, i, stats)?;
         }
         // y_new = y + h Σ b_i k_i
-        self.y1.copy_from_slice(y);
-        for (bi, ki) in self.tab.b.iter().zip(&self.k) {
-            if *bi != 0.0 {
-                for (x, kv) in self.y1.iter_mut().zip(ki) {
-                    *x += h * bi * kv;
-                }
-            }
+        for q in 0..dim {
+            self.y1[q] = self.y0[q] + h * combine(&self.k, dim, q, &self.b);
         }
         if !self.y1.iter().all(|v| v.is_finite()) {
             return Err(StepFault::NonFinite);
@@ -211,32 +283,13 @@ impl Stepper for ExplicitStepper {
             self.end = Some(s - 1);
         }
         y_new.copy_from_slice(&self.y1);
-        let error = match &self.tab.error {
-            ErrorEstimate::None => None,
-            ErrorEstimate::Embedded { .. } => {
-                self.combine(false);
-                Some(weighted_rms(&self.err, y, &self.y1, tol))
-            }
-            ErrorEstimate::Blended { .. } => {
-                self.combine(false);
-                let e5 = weighted_rms(&self.err, y, &self.y1, tol);
-                self.combine(true);
-                let e3 = weighted_rms(&self.err, y, &self.y1, tol);
-                let den = (e5 * e5 + 0.01 * e3 * e3).sqrt();
-                Some(if den > 0.0 { e5 * e5 / den } else { 0.0 })
-            }
-        };
+        let error = self.error_norm(tol);
         if let Some(e) = error {
             if !e.is_finite() {
                 return Err(StepFault::NonFinite);
             }
         }
-        let stiffness = self.tab.stiffness_pair.and_then(|(i, j)| {
-            let den = diff_norm(&self.g_pair[1], &self.g_pair[0]);
-            let num = diff_norm(&self.k[j], &self.k[i]);
-            (den > 0.0).then(|| h.abs() * num / den)
-        });
-        Ok(Attempt { error, stiffness })
+        Ok(Attempt { error, stiffness: self.stiffness_estimate(h) })
     }
 
     fn accept(&mut self) {
@@ -255,7 +308,7 @@ impl Stepper for ExplicitStepper {
         }
         let s = self.tab.stages();
         let mut ok = true;
-        for m in 0..self.extra.len() {
+        for m in 0..self.extra {
             if self.eval_stage(problem, s + m, stats).is_err() {
                 // A non-finite extra stage leaves a non-finite dense output;
                 // the driver sees it in the values it reads.
@@ -263,7 +316,7 @@ impl Stepper for ExplicitStepper {
                 break;
             }
         }
-        if ok && self.end.is_none() && !self.extra.is_empty() {
+        if ok && self.end.is_none() && self.extra > 0 {
             // The Hermite end slope is the extra stage with c = 1 and a = b:
             // the first stage of the next step.
             self.end = Some(s);
@@ -308,15 +361,16 @@ impl Stepper for ExplicitStepper {
     }
 }
 
-impl ExplicitStepper {
+impl<const N: usize> ExplicitStepper<N> {
     /// `r[j] = h Σ_i p[i][j] k_i` from the slopes of the last attempt.
     fn build_dense(&mut self) {
+        let dim = self.n();
         for (j, rj) in self.r.iter_mut().enumerate() {
             rj.iter_mut().for_each(|x| *x = 0.0);
-            for (pi, ki) in self.p.iter().zip(&self.k) {
+            for (i, pi) in self.p.iter().enumerate() {
                 let w = pi.get(j).copied().unwrap_or(0.0);
                 if w != 0.0 {
-                    for (x, kv) in rj.iter_mut().zip(ki) {
+                    for (x, kv) in rj.iter_mut().zip(&self.k[i * dim..(i + 1) * dim]) {
                         *x += self.h * w * kv;
                     }
                 }

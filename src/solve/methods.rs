@@ -56,7 +56,7 @@ impl std::fmt::Debug for MethodInfo {
 macro_rules! explicit_builder {
     ($fn_name:ident, $tab:path) => {
         fn $fn_name(dim: usize) -> Box<dyn Stepper> {
-            Box::new(ExplicitStepper::new(&$tab, dim))
+            ExplicitStepper::boxed(&$tab, dim)
         }
     };
 }

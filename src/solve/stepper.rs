@@ -31,6 +31,14 @@ pub struct Tolerance {
     pub atol: f64,
 }
 
+impl Tolerance {
+    /// The error weight of one component: `atol + rtol·max(|y|, |y_new|)`.
+    #[inline]
+    pub fn weight(&self, y: f64, y_new: f64) -> f64 {
+        self.atol + self.rtol * y.abs().max(y_new.abs())
+    }
+}
+
 impl Default for Tolerance {
     fn default() -> Self {
         Tolerance { rtol: 1e-6, atol: 1e-9 }
