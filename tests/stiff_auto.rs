@@ -58,7 +58,7 @@ fn within_budget_where_explicit_is_not(make: fn() -> Box<dyn Problem>, y0: &[f64
 
 #[test]
 fn auto_solves_van_der_pol_1000_within_budget() {
-    // Reference: tests/reference/stiff_reference.py (SciPy Radau rtol 1e-12).
+    // Reference: tests/reference/stiff_reference.py (SciPy Radau, rtol 1e-13).
     let run = within_budget_where_explicit_is_not(
         || Box::new(VanDerPol::new(1000.0)),
         &[2.0, 0.0],

@@ -1,15 +1,16 @@
 //! Dense linear algebra for the implicit methods: Jacobians (exact, or by
 //! finite differences when the model has none), iteration matrices and their
-//! LU factorization (nalgebra's partial-pivoting LU), and the weighted norm.
+//! LU factorization (nalgebra's partial-pivoting LU). The weighted error norm
+//! is the explicit stepper's [`super::explicit::weighted_rms`].
 //!
 //! Storage follows [`crate::problem`]: a Jacobian is row-major,
 //! `jac[i * n + j] = ∂f_i/∂y_j`.
 // Index loops here mirror the formulas they implement.
 #![allow(clippy::needless_range_loop)]
 
-use nalgebra::{DMatrix, DVectorViewMut, Dyn, LU};
+use nalgebra::{ComplexField, DMatrix, DVectorViewMut, Dyn, LU};
 
-use super::stepper::{Stats, StepFault, Tolerance};
+use super::stepper::{Stats, StepFault};
 use crate::problem::Problem;
 
 /// `∂f/∂y` and `∂f/∂t` at one point, exact when the model provides them and
@@ -116,29 +117,36 @@ pub fn rates(problem: &mut dyn Problem, t: f64, y: &[f64], out: &mut [f64], stat
     }
 }
 
-/// An LU-factored square matrix (nalgebra's partial-pivoting LU), kept
-/// between steps for reuse.
+/// An LU-factored square matrix (nalgebra's partial-pivoting LU), real
+/// (`T = f64`) or complex (`T = Complex<f64>`, for the complex block of the
+/// transformed Radau system), kept between steps for reuse.
 ///
 /// A hand-written row-major elimination was measured against it at n = 2 to
 /// 32 (one factorization plus one solve, native): it was no faster (within
 /// ±20 %, slower at n = 9 and 16), so nalgebra's stays.
-#[derive(Clone, Debug, Default)]
-pub struct Factored {
-    lu: Option<LU<f64, Dyn, Dyn>>,
+#[derive(Clone, Debug)]
+pub struct Factored<T: ComplexField<RealField = f64> = f64> {
+    lu: Option<LU<T, Dyn, Dyn>>,
 }
 
-impl Factored {
+impl<T: ComplexField<RealField = f64>> Default for Factored<T> {
+    fn default() -> Self {
+        Factored { lu: None }
+    }
+}
+
+impl<T: ComplexField<RealField = f64>> Factored<T> {
     /// Factor the `n × n` matrix with entries `m(i, j)` (counted in
     /// `stats.factorizations`). A zero, tiny (below `n·ε` times the largest)
     /// or non-finite pivot gives [`StepFault::Singular`] and leaves nothing
     /// factored.
-    pub fn factor(&mut self, n: usize, m: impl Fn(usize, usize) -> f64, stats: &mut Stats) -> Result<(), StepFault> {
+    pub fn factor(&mut self, n: usize, m: impl Fn(usize, usize) -> T, stats: &mut Stats) -> Result<(), StepFault> {
         stats.factorizations += 1;
         self.lu = None;
         let lu = LU::new(DMatrix::from_fn(n, n, m));
         let packed = lu.lu_internal();
-        let scale = (0..n).map(|i| packed[(i, i)].abs()).fold(0.0, f64::max);
-        let pivots_ok = scale.is_finite() && scale > 0.0 && (0..n).all(|i| packed[(i, i)].abs() > scale * f64::EPSILON * n as f64);
+        let scale = (0..n).map(|i| packed[(i, i)].clone().modulus()).fold(0.0, f64::max);
+        let pivots_ok = scale.is_finite() && scale > 0.0 && (0..n).all(|i| packed[(i, i)].clone().modulus() > scale * f64::EPSILON * n as f64);
         if !pivots_ok {
             return Err(StepFault::Singular);
         }
@@ -157,7 +165,7 @@ impl Factored {
     }
 
     /// Solve `M x = b` in place (`b` becomes `x`).
-    pub fn solve(&self, b: &mut [f64]) -> Result<(), StepFault> {
+    pub fn solve(&self, b: &mut [T]) -> Result<(), StepFault> {
         let lu = self.lu.as_ref().ok_or(StepFault::Singular)?;
         let n = b.len();
         let mut view = DVectorViewMut::from_slice(b, n);
@@ -176,26 +184,6 @@ impl Factored {
 /// `n × n` Jacobian.
 pub fn shifted(jac: &[f64], n: usize, diag: f64, scale: f64) -> impl Fn(usize, usize) -> f64 + '_ {
     move |i, j| if i == j { diag } else { 0.0 } - scale * jac[i * n + j]
-}
-
-/// The error weight of component `i`: `atol + rtol·max(|y_i|, |y_new_i|)`.
-pub fn weight(tol: &Tolerance, y: f64, y_new: f64) -> f64 {
-    tol.atol + tol.rtol * y.abs().max(y_new.abs())
-}
-
-/// Weighted RMS norm of `e` with the weights of [`weight`]; `∞` when `e`
-/// holds a non-finite value.
-pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64 {
-    if e.is_empty() {
-        return 0.0;
-    }
-    let sum: f64 = e.iter().zip(y.iter().zip(y_new)).map(|(ei, (a, b))| (ei / weight(tol, *a, *b)).powi(2)).sum();
-    let norm = (sum / e.len() as f64).sqrt();
-    if norm.is_finite() {
-        norm
-    } else {
-        f64::INFINITY
-    }
 }
 
 #[cfg(test)]

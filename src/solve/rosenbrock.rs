@@ -18,7 +18,8 @@
 // Index loops here mirror the formulas they implement.
 #![allow(clippy::needless_range_loop)]
 
-use super::linalg::{rates, shifted, weighted_rms, Derivatives, Factored};
+use super::explicit::weighted_rms;
+use super::linalg::{rates, shifted, Derivatives, Factored};
 use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
@@ -236,7 +237,8 @@ impl Stepper for Rosenbrock {
         if !y_new.iter().all(|v| v.is_finite()) {
             return Err(StepFault::NonFinite);
         }
-        let error = weighted_rms(&self.err, y, y_new, tol);
+        // A non-finite norm (a zero weight) rejects the step.
+        let error = Some(weighted_rms(&self.err, y, y_new, tol)).filter(|e| e.is_finite()).unwrap_or(f64::INFINITY);
         Ok(Attempt { error: Some(error), stiffness: Some(h.abs() * self.rho) })
     }
 
