@@ -5,10 +5,13 @@
 // cross check and the pitfall probes), shows the verdict, the cautions, a
 // table of every result with its error and trusted digits, the stability
 // picture of a fixed-step run, and offers a convergence study and the
-// printable report.
-import { checkAccuracy, convergenceStudy, stabilitySvg, version } from "./pkg/ratebook.js";
+// printable report. The check and the study run in the Web Worker (each
+// solves the model several times), with the progress bar and its cancel
+// button; the page stays usable meanwhile.
+import { stabilitySvg, version } from "./pkg/ratebook.js";
 import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
+import { inWorker } from "./runner.js";
 
 /** Significant digits the page's results show (results.js prints with fmt(v, 6)). */
 export const SHOWN_DIGITS = 6;
@@ -63,17 +66,24 @@ function convergencePanel(sheet, settings, rep) {
   const target = el("input", { id: "conv-target", type: "number", step: "any", min: "0", placeholder: "e.g. 1e-6", "aria-label": "target error" });
   const out = el("div", { id: "conv-out" });
   const button = el("button", { type: "button", id: "conv-run" }, "Run the convergence study");
-  button.addEventListener("click", () => {
+  button.addEventListener("click", async () => {
     const h = Number(hInput.value);
     const t = Number(target.value);
     const methods = fixed ? [rep.method.id] : ["euler", "heun", "rk4"];
+    const mine = state;
     let study;
+    button.disabled = true;
+    out.replaceChildren(el("p", { class: "muted", id: "conv-running" }, "Running the study at h, h/2, h/4 and h/8…"));
     try {
-      study = convergenceStudy(sheet, { ...solverSettings(settings), method: methods[0], step: h, methods, target: t > 0 ? t : undefined });
+      study = await inWorker({ kind: "convergence", sheet, settings: { ...solverSettings(settings), method: methods[0], step: h, methods, target: t > 0 ? t : undefined } },
+        { label: "Convergence study…" });
     } catch (e) {
-      out.replaceChildren(el("p", { class: "bad" }, `The study failed: ${e.message}`));
+      out.replaceChildren(el("p", { class: e.cancelled ? "muted" : "bad" }, e.cancelled ? "The study was cancelled." : `The study failed: ${e.message}`));
       return;
+    } finally {
+      button.disabled = false;
     }
+    if (state !== mine) return;
     state.convergence = study;
     const rows = study.lines.map((l) => el("tr", {},
       el("td", {}, `${plainName(l.label)}`), el("td", {}, l.methodName),
@@ -122,14 +132,35 @@ export function reportData() {
   };
 }
 
-export function renderAccuracy(container, sheet, settings, run) {
+let checks = 0;
+
+/**
+ * Check the run and show the report. The check runs in the worker; a newer
+ * call supersedes an older one still running (its result is dropped).
+ * Resolves when this call's report (or its failure) is shown.
+ */
+export async function renderAccuracy(container, sheet, settings, run) {
+  // Shown again for the same run: the report on screen still holds.
+  const same = state && state.sheet === sheet && JSON.stringify(state.settings) === JSON.stringify(settings);
+  if (same && container.dataset.state === "done") return;
+  const seq = ++checks;
   let rep;
+  container.dataset.state = "checking";
+  container.replaceChildren(el("h3", {}, "How far to trust the answer"),
+    el("p", { class: "muted", id: "accuracy-checking" }, "Checking: re-solving the model with tighter settings and probing for pitfalls…"));
   try {
-    rep = checkAccuracy(sheet, { ...solverSettings(settings), shownDigits: SHOWN_DIGITS });
+    rep = await inWorker({ kind: "accuracy", sheet, settings: { ...solverSettings(settings), shownDigits: SHOWN_DIGITS } }, { label: "Checking the accuracy…" });
   } catch (e) {
-    container.replaceChildren(el("p", { class: "bad" }, `The accuracy check could not run: ${e.message}`));
+    if (seq !== checks) return;
+    container.dataset.state = e.cancelled ? "cancelled" : "failed";
+    const again = el("button", { type: "button", id: "accuracy-again" }, "Check again");
+    again.addEventListener("click", () => renderAccuracy(container, sheet, settings, run));
+    container.replaceChildren(el("p", { class: e.cancelled ? "muted" : "bad" },
+      e.cancelled ? "The accuracy check was cancelled. " : `The accuracy check could not run: ${e.message} `), again);
     return;
   }
+  if (seq !== checks) return;
+  container.dataset.state = "done";
   rep.t0 = run?.t?.[0] ?? 0;
   state = { sheet, settings, report: rep, stability: null, convergence: null };
   const print = el("button", { type: "button", id: "report-print" }, "Print report");

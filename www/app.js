@@ -1,6 +1,6 @@
 // The workbench page: wires the editor, settings, views, results and keeping
 // of work around the solver.
-import { initSync, solve, compareMethods, methods, version } from "./pkg/ratebook.js";
+import { initSync, solve, compareMethods, checkAccuracy, convergenceStudy, methods, version } from "./pkg/ratebook.js";
 import { wasmBytes } from "./pkg/wasm_bytes.js";
 import { $, el, notify, download, timed } from "./dom.js";
 import { EXAMPLES, exampleById } from "./examples.js";
@@ -38,6 +38,8 @@ METHODS.sort((a, b) => (b[0] === "auto") - (a[0] === "auto"));
 setLocal({
   solve: (m) => solveHere(m.sheet, m.settings),
   compare: guarded((m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress)),
+  accuracy: guarded((m, onProgress) => checkAccuracy(m.sheet, m.settings, onProgress)),
+  convergence: guarded((m, onProgress) => convergenceStudy(m.sheet, m.settings, onProgress)),
 });
 
 const app = {
@@ -220,12 +222,25 @@ function save() {
   autosave(kept());
 }
 
-function applyKept(k, { keepOld = true } = {}) {
+/**
+ * Show a kept model (a file, a link, an example, the autosave). The sheet
+ * it replaces is kept one click away ("Back to the previous sheet") and the
+ * notice says so; `opened` names what was opened, for that notice.
+ */
+function applyKept(k, { keepOld = true, opened = "", announce = false } = {}) {
   const current = kept();
   if (keepOld && current.sheet.trim() && current.sheet !== k.sheet) {
     keepPrevious(current);
     app.previous = current;
     $("restore-previous").hidden = false;
+    // Nothing of the user's is at stake when an unedited example goes.
+    const edited = !EXAMPLES.some((e) => e.sheet === current.sheet);
+    const message = opened
+      ? `${opened[0].toUpperCase()}${opened.slice(1)} replaced your sheet. The sheet you had is kept: “Back to the previous sheet” brings it back.`
+      : "This is the previous sheet again. The one you just had is kept: “Back to the previous sheet” swaps them back.";
+    if (edited || announce) notify(message, { action: { label: "Back to the previous sheet", run: restorePrevious } });
+  } else if (announce) {
+    notify(`Opened ${opened}.`);
   }
   $("sheet").value = k.sheet;
   writeSettings(k.settings);
@@ -234,6 +249,11 @@ function applyKept(k, { keepOld = true } = {}) {
   const done = solveAndShow({ resetView: true });
   save();
   return done;
+}
+
+function restorePrevious() {
+  const prev = app.previous ?? loadPrevious();
+  if (prev) { app.exampleId = ""; applyKept(prev); }
 }
 
 function loadExample(id, opts) {
@@ -245,7 +265,7 @@ function loadExample(id, opts) {
   caution.textContent = ex.caution ?? "";
   caution.hidden = !ex.caution;
   if (ex.field) setFieldAxes(ex.field);
-  return applyKept({ sheet: ex.sheet, settings: ex.settings }, opts);
+  return applyKept({ sheet: ex.sheet, settings: ex.settings }, { opened: `the example “${ex.title}”`, ...opts });
 }
 
 function fileBase() {
@@ -257,7 +277,7 @@ async function openLink(hash) {
     const k = await readFragment(hash);
     if (!k) return false;
     app.exampleId = "";
-    await applyKept(k);
+    await applyKept(k, { opened: "the link", announce: true });
     return true;
   } catch (e) {
     if (e instanceof KeptModelError) { notify(`This link cannot be opened: ${e.message}.`, { bad: true, sticky: true }); return false; }
@@ -350,17 +370,13 @@ function initPage() {
     if (f.size > 1 << 20) { notify("This file cannot be opened: it is over 1 MB.", { bad: true }); return; }
     try {
       app.exampleId = "";
-      await applyKept(readFileText(await f.text()));
-      notify(`Opened ${f.name}.`);
+      await applyKept(readFileText(await f.text()), { opened: `the file ${f.name}`, announce: true });
     } catch (e) {
       if (e instanceof KeptModelError) notify(`This file cannot be opened: ${e.message}.`, { bad: true, sticky: true });
       else throw e;
     }
   });
-  $("restore-previous").addEventListener("click", () => {
-    const prev = app.previous ?? loadPrevious();
-    if (prev) applyKept(prev);
-  });
+  $("restore-previous").addEventListener("click", restorePrevious);
   $("share").addEventListener("click", async () => {
     const { url } = await shareLink();
     showDialog("Share link", "This link holds the whole model and its settings; opening it restores them exactly. Nothing is uploaded anywhere.", url);

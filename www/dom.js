@@ -27,14 +27,25 @@ export function download(name, blob) {
 }
 
 let noticeTimer = 0;
-/** A short message at the top of the page; `bad` for problems. */
-export function notify(message, { bad = false, sticky = false } = {}) {
+/**
+ * A short message at the top of the page; `bad` for problems. `action`
+ * ({ label, run }) adds a button that runs it and closes the message; such a
+ * message stays until it is used, dismissed or replaced.
+ */
+export function notify(message, { bad = false, sticky = false, action = null } = {}) {
   const n = $("notice");
-  n.textContent = message;
+  n.replaceChildren(message);
+  if (action) {
+    const b = el("button", { type: "button", class: "small", id: "notice-action" }, action.label);
+    b.addEventListener("click", () => { n.hidden = true; action.run(); });
+    const close = el("button", { type: "button", class: "small link", id: "notice-close", "aria-label": "Dismiss" }, "Dismiss");
+    close.addEventListener("click", () => { n.hidden = true; });
+    n.append(" ", b, " ", close);
+  }
   n.classList.toggle("bad", bad);
   n.hidden = false;
   clearTimeout(noticeTimer);
-  if (!sticky) noticeTimer = setTimeout(() => { n.hidden = true; }, 6000);
+  if (!sticky && !action) noticeTimer = setTimeout(() => { n.hidden = true; }, 6000);
 }
 
 /** An SVG document as a data: URL, for an <img>. */

@@ -77,9 +77,26 @@ function showBusy(job) {
   job.timer = setTimeout(() => {
     busyJob = job;
     $("busy").hidden = false;
-    $("busy-text").textContent = job.label;
-    $("busy-bar").removeAttribute("value");
+    showProgress(job);
   }, 100);
+}
+
+/**
+ * The bar for `job`'s last progress report `[done, total]`: determinate when
+ * the total is known (total > 0), else moving, with the work done so far.
+ */
+function showProgress(job) {
+  const bar = $("busy-bar");
+  const [done, total] = job.progress ?? [0, 0];
+  if (total > 0) {
+    bar.max = total;
+    bar.value = Math.min(done, total);
+    $("busy-text").textContent = `${job.label} ${Math.floor(100 * Math.min(done, total) / total)}%`;
+  } else {
+    bar.removeAttribute("value");
+    $("busy-text").textContent = done > 0 ? `${job.label} (${done.toLocaleString("en")} evaluations so far)` : job.label;
+  }
+  $("busy").dataset.progress = total > 0 ? String(done / total) : "";
 }
 
 function finishBusy(job) {
@@ -103,9 +120,10 @@ export function cancelAll() {
  */
 export function inWorker(msg, { label = "Solving…", onProgress } = {}) {
   return new Promise((resolve, reject) => {
-    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, onProgress: (d, n) => {
+    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, progress: null, onProgress: (d, n) => {
+      job.progress = [d, n];
       onProgress?.(d, n);
-      if (busyJob === job) { $("busy-bar").max = n; $("busy-bar").value = d; $("busy-text").textContent = `${label} ${d} of ${n}`; }
+      if (busyJob === job) showProgress(job);
     } };
     const w = startWorker();
     if (!w) { runHere(job); return; }

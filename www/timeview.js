@@ -31,6 +31,8 @@ function describeTime() {
 /** Redraw the time view. */
 export function drawTime() {
   tv.frame = drawPlot("time-plot");
+  // Test hook: where the plot landed (pixels and data range).
+  if (tv.frame) $("time-plot").dataset.frame = JSON.stringify(tv.frame);
   clearHover();
 }
 
@@ -151,7 +153,10 @@ function hover(px, py) {
     ctx.arc(px, p.py, 4, 0, 2 * Math.PI);
     ctx.fill();
   }
-  $("readout").textContent = `${run.independent} = ${fmt(x, 6)}:  ` + vals.map((v) => `${v.name} = ${fmt(v.value, 6)}`).join(",  ");
+  // Events under the pointer, named in full (a label with no room on the plot is left out there).
+  const near = (run.events ?? []).filter((e) => Math.abs(toPixel(f, e.t, 0).px - px) <= 4);
+  const events = near.map((e) => `event “${e.name}” at ${run.independent} = ${fmt(e.t, 6)}`).join(";  ");
+  $("readout").textContent = `${run.independent} = ${fmt(x, 6)}:  ` + vals.map((v) => `${v.name} = ${fmt(v.value, 6)}`).join(",  ") + (events ? `;  ${events}` : "");
 }
 
 export function initTimeView() {

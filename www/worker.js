@@ -1,15 +1,18 @@
 // The solver in a Web Worker, for solves and studies that may take a while.
 // It receives the compiled WebAssembly.Module from the page (so it never
 // fetches anything) and answers { id, ok, value } or { id, ok: false, error }.
-import { initSync, solve, compareMethods } from "./pkg/ratebook.js";
+import { initSync, solve, compareMethods, checkAccuracy, convergenceStudy } from "./pkg/ratebook.js";
 import { initGuard, guarded } from "./guard.js";
+
+/** A job's progress callback: posts { id, progress: [done, total] } (total 0: unknown). */
+const progressOf = (m) => (done, total) => self.postMessage({ id: m.id, progress: [done, total] });
 
 // A panic restarts this worker's solver; the job fails with its message.
 const jobs = {
   solve: guarded((m) => solve(m.sheet, m.settings)),
-  compare: guarded((m) => compareMethods(m.sheet, m.settings, m.request, (done, total) => {
-    self.postMessage({ id: m.id, progress: [done, total] });
-  })),
+  compare: guarded((m) => compareMethods(m.sheet, m.settings, m.request, progressOf(m))),
+  accuracy: guarded((m) => checkAccuracy(m.sheet, m.settings, progressOf(m))),
+  convergence: guarded((m) => convergenceStudy(m.sheet, m.settings, progressOf(m))),
 };
 
 self.onmessage = (event) => {

@@ -69,15 +69,101 @@ fn invalid(field: &'static str, reason: String) -> ApiError {
     ApiError::Settings(SolveError::InvalidSettings { field, reason })
 }
 
+/// How a study reports its progress: `(done, total)` in right-hand-side
+/// evaluations, `total` when the study can tell it beforehand.
+pub type Progress<'a> = &'a mut dyn FnMut(u64, Option<u64>);
+
+/// Right-hand-side evaluations between two progress reports.
+const TICK: u64 = 4096;
+
+/// A problem that counts its right-hand-side evaluations and reports them
+/// every [`TICK`]; everything else goes straight to `inner`.
+struct Ticking<'a, 'p> {
+    inner: &'a mut dyn Problem,
+    evals: u64,
+    total: Option<u64>,
+    progress: Progress<'p>,
+}
+
+impl Problem for Ticking<'_, '_> {
+    fn dim(&self) -> usize {
+        self.inner.dim()
+    }
+    fn state_names(&self) -> &[String] {
+        self.inner.state_names()
+    }
+    fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
+        self.inner.rhs(t, y, dy);
+        self.evals += 1;
+        if self.evals % TICK == 0 {
+            // An estimated total is never shown as reached before the end.
+            let done = self.total.map_or(self.evals, |n| self.evals.min(n.saturating_sub(1)));
+            (self.progress)(done, self.total);
+        }
+    }
+    fn jacobian(&mut self, t: f64, y: &[f64], jac: &mut [f64]) -> bool {
+        self.inner.jacobian(t, y, jac)
+    }
+    fn time_derivative(&mut self, t: f64, y: &[f64], dfdt: &mut [f64]) -> bool {
+        self.inner.time_derivative(t, y, dfdt)
+    }
+    fn helper_names(&self) -> &[String] {
+        self.inner.helper_names()
+    }
+    fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
+        self.inner.helpers(t, y, out)
+    }
+    fn events(&self) -> &[crate::problem::EventSpec] {
+        self.inner.events()
+    }
+    fn event_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
+        self.inner.event_values(t, y, out)
+    }
+    fn switch_count(&self) -> usize {
+        self.inner.switch_count()
+    }
+    fn switch_values(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
+        self.inner.switch_values(t, y, out)
+    }
+    fn explain_nonfinite(&mut self, t: f64, y: &[f64]) -> Option<crate::problem::NonFiniteCause> {
+        self.inner.explain_nonfinite(t, y)
+    }
+}
+
+/// Run `study` on the model of `sheet` (formulas emitted where the page can,
+/// as in `solve`), counting its work for `progress`; `total` is the
+/// estimate of it, when there is one. The last report is `(total, total)`.
+fn with_model<T>(
+    sheet: &str,
+    req: &StudyRequest,
+    total: impl FnOnce(&Model, &Settings) -> Option<u64>,
+    progress: Progress,
+    study: impl FnOnce(&mut dyn Problem, f64, &[f64], &Settings, &str) -> Result<T, SolveError>,
+) -> Result<T, ApiError> {
+    let (model, s) = model_and_settings(sheet, req)?;
+    let (t0, y0, ind) = (model.t0(), model.initial_state().to_vec(), model.independent().to_string());
+    let total = total(&model, &s);
+    let mut emitted = crate::emit::EmittedModel::new(model);
+    let mut ticking = Ticking { inner: &mut emitted, evals: 0, total, progress };
+    let out = study(&mut ticking, t0, &y0, &s, &ind).map_err(ApiError::Settings)?;
+    let done = ticking.evals;
+    (ticking.progress)(total.unwrap_or(done), Some(total.unwrap_or(done)));
+    Ok(out)
+}
+
 /// Check how far to trust the run of `sheet` with `req`.
 pub fn check_accuracy(sheet: &str, req: &StudyRequest) -> Result<AccuracyReport, ApiError> {
-    let (mut model, s) = model_and_settings(sheet, req)?;
-    let (t0, y0, ind) = (model.t0(), model.initial_state().to_vec(), model.independent().to_string());
+    check_accuracy_with(sheet, req, &mut |_, _| {})
+}
+
+/// [`check_accuracy`], reporting its work to `progress` as it goes (the
+/// total is not known beforehand: the checks depend on what the first run finds).
+pub fn check_accuracy_with(sheet: &str, req: &StudyRequest, progress: Progress) -> Result<AccuracyReport, ApiError> {
     let opts = Options {
         shown_digits: req.shown_digits.unwrap_or(6).clamp(1, 15),
         cross_method: req.cross_method.unwrap_or(true),
     };
-    let report = check::check(&mut model as &mut dyn Problem, t0, &y0, &s, &ind, &opts).map_err(ApiError::Settings)?;
+    let report = with_model(sheet, req, |_, _| None, progress, |p, t0, y0, s, ind| check::check(p, t0, y0, s, ind, &opts))?;
     Ok(AccuracyReport { version: env!("CARGO_PKG_VERSION"), report })
 }
 
@@ -94,10 +180,36 @@ pub struct ConvergenceReport {
 
 /// The fixed-step convergence study of `sheet` from `req.step` down by halves.
 pub fn convergence_study(sheet: &str, req: &StudyRequest) -> Result<ConvergenceReport, ApiError> {
-    let (mut model, s) = model_and_settings(sheet, req)?;
-    let (t0, y0, ind) = (model.t0(), model.initial_state().to_vec(), model.independent().to_string());
-    let methods = req.methods.clone().unwrap_or_else(|| vec![s.method.clone()]);
-    let sweep = sweep::sweep(&mut model, t0, &y0, &s, &methods, req.target, &ind).map_err(ApiError::Settings)?;
+    convergence_study_with(sheet, req, &mut |_, _| {})
+}
+
+/// Right-hand-side evaluations a convergence study of `methods` from step
+/// `s.step` takes: each method's stages times its steps at h, h/2, h/4, h/8
+/// (implicit methods at three Newton iterations a stage). The adaptive
+/// reference run is left out; it is small beside the finest fixed steps.
+fn sweep_work(t0: f64, s: &Settings, methods: &[String]) -> Option<u64> {
+    let h = s.step.filter(|h| *h > 0.0)?;
+    let steps = ((s.to - t0).abs() / h).round().max(1.0);
+    let levels = (1u64 << sweep::LEVELS) - 1;
+    let per_step: u64 = methods
+        .iter()
+        .map(|id| solve::method(id).map_or(1, |m| m.stages as u64 * if m.implicit { 3 } else { 1 }))
+        .sum();
+    let total = steps * (levels * per_step) as f64;
+    (total.is_finite() && total >= 1.0).then(|| total.min(u64::MAX as f64 / 2.0) as u64)
+}
+
+/// [`convergence_study`], reporting its work to `progress` as it goes,
+/// against the study's estimate of it.
+pub fn convergence_study_with(sheet: &str, req: &StudyRequest, progress: Progress) -> Result<ConvergenceReport, ApiError> {
+    let methods = |s: &Settings| req.methods.clone().unwrap_or_else(|| vec![s.method.clone()]);
+    let sweep = with_model(
+        sheet,
+        req,
+        |m, s| sweep_work(m.t0(), s, &methods(s)),
+        progress,
+        |p, t0, y0, s, ind| sweep::sweep(p, t0, y0, s, &methods(s), req.target, ind),
+    )?;
     let plot = convergence_svg(&sweep, 640, 400)?;
     Ok(ConvergenceReport { sweep, plot })
 }
@@ -148,4 +260,54 @@ pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String,
         convergence(&root, &lines).map_err(|e| invalid("drawing", e.0))?;
     }
     Ok(svg)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const DECAY: &str = "k = 0.5\ndy/dt = -k*y\ny(0) = 1\n";
+
+    #[test]
+    fn a_convergence_study_reports_progress_up_to_its_estimate() {
+        let req = StudyRequest {
+            run: RunRequest { to: Some(20.0), method: Some("euler".into()), step: Some(0.001), ..Default::default() },
+            methods: Some(vec!["euler".into(), "rk4".into()]),
+            ..Default::default()
+        };
+        let mut seen: Vec<(u64, Option<u64>)> = Vec::new();
+        let study = convergence_study_with(DECAY, &req, &mut |d, t| seen.push((d, t))).unwrap();
+        // 20 000 steps at h, times 1 + 2 + 4 + 8, times 1 stage (Euler) + 4 (RK4).
+        let total = 20_000 * 15 * 5;
+        assert!(seen.len() > 10, "{} reports", seen.len());
+        assert!(seen.iter().all(|&(_, t)| t == Some(total)));
+        assert!(seen.windows(2).all(|w| w[0].0 <= w[1].0), "monotone");
+        assert!(seen[..seen.len() - 1].iter().all(|&(d, _)| d < total), "not done before the end");
+        assert_eq!(*seen.last().unwrap(), (total, Some(total)));
+        // The same study without progress gives the same numbers.
+        let plain = convergence_study(DECAY, &req).unwrap();
+        assert_eq!(study.sweep.lines.len(), plain.sweep.lines.len());
+        for (a, b) in study.sweep.lines.iter().zip(&plain.sweep.lines) {
+            assert_eq!(a.values, b.values);
+        }
+    }
+
+    #[test]
+    fn an_accuracy_check_reports_its_work_without_a_total_until_the_end() {
+        let req = StudyRequest { run: RunRequest { to: Some(200.0), rtol: Some(1e-10), ..Default::default() }, ..Default::default() };
+        let mut seen: Vec<(u64, Option<u64>)> = Vec::new();
+        check_accuracy_with(DECAY, &req, &mut |d, t| seen.push((d, t))).unwrap();
+        let (last, rest) = seen.split_last().unwrap();
+        assert!(rest.iter().all(|&(_, t)| t.is_none()));
+        assert_eq!(last.1, Some(last.0));
+        assert!(last.0 >= rest.last().map_or(0, |r| r.0));
+    }
+
+    #[test]
+    fn the_work_estimate_needs_a_step() {
+        let s = Settings { to: 1.0, step: None, ..Default::default() };
+        assert_eq!(sweep_work(0.0, &s, &["rk4".into()]), None);
+        let s = Settings { to: 1.0, step: Some(0.1), ..Default::default() };
+        assert_eq!(sweep_work(0.0, &s, &["rk4".into()]), Some(10 * 15 * 4));
+    }
 }

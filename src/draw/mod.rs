@@ -351,11 +351,16 @@ where
         .chain(fig.marks.iter().map(|m| &m.y))
         .chain(fig.field.iter().map(|f| &f[1]));
     let (y0, y1) = shown_range(fig.y_range, fig.log_y, ys);
+    // Event labels go in rows above the plot; lay them out on the area the
+    // chart will have, to know how many rows to leave room for.
+    let (w, _) = root.dim_in_pixel();
+    let planned = (MARGIN + Y_LABEL_AREA) as f64..(w as i32 - MARGIN) as f64;
+    let rows = rule_labels(fig, planned, (x0, x1)).iter().flatten().map(|l| l.row + 1).max().unwrap_or(0);
     let mut chart = ChartBuilder::on(root)
-        .margin(12)
-        .margin_top(if fig.rules.is_empty() { 12 } else { 22 })
+        .margin(MARGIN)
+        .margin_top(if fig.rules.is_empty() { MARGIN } else { 8 + RULE_ROW * rows.max(1) as i32 })
         .x_label_area_size(40)
-        .y_label_area_size(64)
+        .y_label_area_size(Y_LABEL_AREA)
         .build_cartesian_2d(x0..x1, y0..y1)?;
     let x_fmt = if fig.log_x { log_tick_label } else { tick_label };
     let y_fmt = if fig.log_y { log_tick_label } else { tick_label };
@@ -417,23 +422,19 @@ where
         }
     }
 
-    for r in &fig.rules {
+    let labels = rule_labels(fig, frame.left..frame.right, (x0, x1));
+    for (r, place) in fig.rules.iter().zip(&labels) {
         let x = axis_value(r.x, fig.log_x);
         if !(x.is_finite() && x >= x0 && x <= x1) {
             continue;
         }
-        chart.draw_series(DashedLineSeries::new(
-            vec![(x, y0), (x, y1)],
-            4,
-            4,
-            RGBColor(0x7a, 0x30, 0x20).stroke_width(1),
-        ))?;
-        let (bx, by) = chart.backend_coord(&(x, y1));
-        // Labels near the right edge go to the left of their rule.
-        let right = (bx as f64) > frame.left + 0.75 * (frame.right - frame.left);
-        let style = ("sans-serif", 12).into_font().color(&RGBColor(0x7a, 0x30, 0x20));
-        let style = if right { style.pos(Pos::new(HPos::Right, VPos::Top)) } else { style };
-        root.draw(&Text::new(r.label.clone(), (if right { bx - 3 } else { bx + 3 }, by - 16), style))?;
+        chart.draw_series(DashedLineSeries::new(vec![(x, y0), (x, y1)], 4, 4, RULE_INK.stroke_width(1)))?;
+        // A label that found no room is left out; the summary and the
+        // hover read-out name every event.
+        let Some(place) = place.filter(|p| p.row < rows.max(1)) else { continue };
+        let top = frame.top as i32 - 4 - RULE_ROW * (place.row as i32 + 1);
+        let style = ("sans-serif", RULE_FONT).into_font().color(&RULE_INK);
+        root.draw(&Text::new(r.label.clone(), (place.left, top), style))?;
     }
 
     for m in &fig.marks {
@@ -463,6 +464,63 @@ where
     text::legend(root, &legend, area, text::Corner::UpperRight)?;
     root.present()?;
     Ok(frame)
+}
+
+/// Margin around the chart, pixels.
+const MARGIN: i32 = 12;
+/// Width of the y axis's label area, pixels.
+const Y_LABEL_AREA: i32 = 64;
+/// Event-rule labels: font size and the height of one row of them, pixels.
+const RULE_FONT: f64 = 12.0;
+const RULE_ROW: i32 = 15;
+/// Most rows of event labels above a plot; labels that fit in none are left out.
+pub const RULE_ROWS: usize = 3;
+/// Ink of event rules and their labels.
+const RULE_INK: RGBColor = RGBColor(0x7a, 0x30, 0x20);
+
+/// Where one event label goes: its left edge in pixels and its row above
+/// the plot (0 nearest).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct LabelPlace {
+    /// Left edge of the text, pixels.
+    pub left: i32,
+    /// Row, counted up from the plot's top edge.
+    pub row: usize,
+}
+
+/// Lay out the labels of `fig`'s rules over the plotting area `px` (pixels)
+/// showing `xs` (axis units): each label just right of its rule, or just
+/// left when that runs past the right edge; in the lowest of [`RULE_ROWS`]
+/// rows where it overlaps no other label. `None` for a rule off the axis or
+/// a label that fits in no row.
+pub fn rule_labels(fig: &Figure, px: std::ops::Range<f64>, (x0, x1): (f64, f64)) -> Vec<Option<LabelPlace>> {
+    const GAP: i32 = 6;
+    let mut ends = [i32::MIN; RULE_ROWS]; // right end of the last label in each row
+    // (rule, left edge, width), from left to right.
+    let mut order: Vec<(usize, i32, i32)> = fig
+        .rules
+        .iter()
+        .enumerate()
+        .filter_map(|(i, r)| {
+            let x = axis_value(r.x, fig.log_x);
+            if !(x.is_finite() && x >= x0 && x <= x1 && x1 > x0) {
+                return None;
+            }
+            let bx = (px.start + (x - x0) / (x1 - x0) * (px.end - px.start)).round() as i32;
+            let w = text::text_width(&r.label, RULE_FONT) as i32;
+            let left = if (bx + 3 + w) as f64 > px.end { (bx - 3 - w).max(px.start as i32 - Y_LABEL_AREA) } else { bx + 3 };
+            Some((i, left, w))
+        })
+        .collect();
+    order.sort_by_key(|&(i, left, _)| (left, i));
+    let mut out = vec![None; fig.rules.len()];
+    for (i, left, w) in order {
+        if let Some(row) = (0..RULE_ROWS).find(|&k| ends[k] + GAP <= left) {
+            ends[row] = left + w;
+            out[i] = Some(LabelPlace { left, row });
+        }
+    }
+    out
 }
 
 /// Pixel strokes of a figure's direction field: one equal-length segment on
@@ -634,6 +692,50 @@ mod tests {
         assert!(frame.x0 < 0.1f64.log10() && frame.x1 > 0.025f64.log10());
         assert!(svg.contains("<circle"), "no dots");
         assert!(!svg.contains("NaN"));
+    }
+
+    fn rules_at(xs: &[f64], label: &str) -> Figure {
+        Figure { rules: xs.iter().map(|&x| Rule { x, label: label.into() }).collect(), ..Default::default() }
+    }
+
+    #[test]
+    fn event_labels_close_in_time_are_staggered_not_overlapped() {
+        // Three events a few pixels apart: three rows, none overlapping.
+        let fig = rules_at(&[10.0, 10.5, 11.0], "h < 0.05 m");
+        let places = rule_labels(&fig, 100.0..700.0, (0.0, 100.0));
+        let rows: Vec<usize> = places.iter().map(|p| p.unwrap().row).collect();
+        assert_eq!(rows, vec![0, 1, 2]);
+        // Far apart: all in the first row.
+        let fig = rules_at(&[10.0, 40.0, 70.0], "mark");
+        assert!(rule_labels(&fig, 100.0..700.0, (0.0, 100.0)).iter().all(|p| p.unwrap().row == 0));
+        // Within one row no two labels overlap.
+        let fig = rules_at(&(0..40).map(|i| i as f64 * 2.5).collect::<Vec<_>>(), "T > 60");
+        let places = rule_labels(&fig, 100.0..700.0, (0.0, 100.0));
+        let w = text::text_width("T > 60", RULE_FONT) as i32;
+        for row in 0..RULE_ROWS {
+            let mut lefts: Vec<i32> = places.iter().flatten().filter(|p| p.row == row).map(|p| p.left).collect();
+            lefts.sort();
+            assert!(lefts.windows(2).all(|w2| w2[1] - w2[0] >= w), "row {row}: {lefts:?}");
+        }
+    }
+
+    #[test]
+    fn labels_that_fit_in_no_row_are_left_out_and_the_rest_drawn() {
+        let fig = rules_at(&[50.0; 6], "dose 2");
+        let places = rule_labels(&fig, 100.0..700.0, (0.0, 100.0));
+        assert_eq!(places.iter().flatten().count(), RULE_ROWS);
+        assert_eq!(places.iter().filter(|p| p.is_none()).count(), 6 - RULE_ROWS);
+        // Near the right edge a label goes to the left of its rule.
+        let fig = rules_at(&[99.0], "tank empty");
+        let p = rule_labels(&fig, 100.0..700.0, (0.0, 100.0))[0].unwrap();
+        assert!(p.left + text::text_width("tank empty", RULE_FONT) as i32 <= 694);
+        // Off the axis: no place.
+        assert_eq!(rule_labels(&rules_at(&[150.0], "x"), 100.0..700.0, (0.0, 100.0)), vec![None]);
+        // In the SVG each shown label appears once, none twice.
+        let mut fig = decay();
+        fig.rules = rules_at(&[1.0, 1.02, 1.04, 1.06, 1.08], "alarm").rules;
+        let svg = figure_svg(&fig, 500, 300).unwrap();
+        assert_eq!(svg.lines().filter(|l| l.trim() == "alarm").count(), RULE_ROWS, "{svg}");
     }
 
     #[test]

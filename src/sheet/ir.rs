@@ -22,10 +22,11 @@
 //! order gives bit-identical results.
 
 /// Defines [`Op`] and [`apply`] from one list, and the interpreter's own
-/// operation set (every `Op` plus fused pairs) from the same list, so the two
-/// cannot drift apart.
+/// operation set (every `Op` and every chain of [`CHAINS`]) from the same
+/// lists, so the two cannot drift apart.
 macro_rules! operations {
-    (($x:ident, $y:ident, $c:ident) $( $(#[$doc:meta])* $name:ident => $body:expr; )*) => {
+    (($x:ident, $y:ident, $c:ident) $( $(#[$doc:meta])* $name:ident => $body:expr; )*
+     @chains { $( $(#[$cdoc:meta])* $cname:ident = [ $( $cop:ident $cside:ident ),+ ]; )* }) => {
         /// One operation of the tape. `x = s[a]`, `y = s[b]`, `c` is the immediate.
         #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
         pub enum Op {
@@ -40,29 +41,12 @@ macro_rules! operations {
             }
         }
 
-        /// The interpreter's operations: every [`Op`], and pairs fused into
-        /// one dispatch. A fused pair rounds after each step exactly like the
-        /// two instructions it replaces (none is a fused multiply-add), so
-        /// results are bit-identical with the plain tape.
+        /// What one step of the interpreter runs: a plain operation, or a
+        /// chain of them (see [`CHAINS`]).
         #[derive(Clone, Copy, Debug, PartialEq)]
         enum XOp {
             $( $name, )*
-            /// `x * y + z`
-            MulAdd,
-            /// `x * y - z`
-            MulSub,
-            /// `z - x * y`
-            NegMulAdd,
-            /// `x + y * c`
-            AddMulC,
-            /// `x - y * c`
-            SubMulC,
-            /// `x * c - y`
-            MulCSub,
-            /// `(x + y) * c`
-            AddThenMulC,
-            /// `(x - y) * c`
-            SubThenMulC,
+            $( $(#[$cdoc])* $cname, )*
         }
 
         impl XOp {
@@ -74,22 +58,87 @@ macro_rules! operations {
             }
         }
 
-        /// What the interpreter computes for `op`; `z = s[d]`.
+        /// The chains the interpreter runs as one step, longest first, each
+        /// with its step operation.
+        const CHAINS: &[(XOp, Chain)] = &[
+            $( (XOp::$cname, &[ $( (Op::$cop, Side::$cside) ),+ ]), )*
+        ];
+
+        /// Run step `e` over the slot array `x`.
+        ///
+        /// # Safety
+        /// Every slot `e` reads is inside `x` (see [`Program::run`]).
         #[inline(always)]
-        fn exec_apply(op: XOp, $x: f64, $y: f64, z: f64, $c: f64) -> f64 {
-            match op {
-                $( XOp::$name => $body, )*
-                XOp::MulAdd => $x * $y + z,
-                XOp::MulSub => $x * $y - z,
-                XOp::NegMulAdd => z - $x * $y,
-                XOp::AddMulC => $x + $y * $c,
-                XOp::SubMulC => $x - $y * $c,
-                XOp::MulCSub => $x * $c - $y,
-                XOp::AddThenMulC => ($x + $y) * $c,
-                XOp::SubThenMulC => ($x - $y) * $c,
+        unsafe fn exec(e: &Exec, x: &[f64]) -> f64 {
+            let at = |k: usize| unsafe { *x.get_unchecked(e.s[k] as usize) };
+            match e.op {
+                $( XOp::$name => apply(Op::$name, at(0), at(1), e.c[0]), )*
+                $( XOp::$cname => unsafe { run_chain(&[ $( (Op::$cop, Side::$cside) ),+ ], e, x) }, )*
             }
         }
     };
+}
+
+/// Which operand of a chain's operation is the previous operation's result.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Side {
+    /// The first (`x`); also used for one-operand operations.
+    L,
+    /// The second (`y`).
+    R,
+}
+
+/// A chain: plain operations, each after the first taking the previous
+/// result as its operand on the given side. The first reads slots `s[0]` (and
+/// `s[1]` when binary); every later two-operand operation reads the next slot
+/// of [`Exec::s`] as its other operand; every operation with an immediate
+/// takes the next of [`Exec::c`].
+type Chain = &'static [(Op, Side)];
+
+/// The slots and immediates a chain reads.
+fn chain_needs(chain: Chain) -> (usize, usize) {
+    let mut slots = 0;
+    let mut imms = 0;
+    for (k, &(op, _)) in chain.iter().enumerate() {
+        slots += match (k, op.is_binary()) {
+            (0, true) => 2,
+            (0, false) => 1,
+            (_, true) => 1,
+            (_, false) => 0,
+        };
+        imms += usize::from(op.uses_immediate());
+    }
+    (slots, imms)
+}
+
+/// Run a chain, rounding after each operation exactly like the plain tape
+/// (each operation is [`apply`]). Called with a constant `chain`, so that
+/// it compiles to straight-line code.
+///
+/// # Safety
+/// Every slot of `e.s` that the chain reads is inside `x`.
+#[inline(always)]
+unsafe fn run_chain(chain: Chain, e: &Exec, x: &[f64]) -> f64 {
+    let at = |k: usize| unsafe { *x.get_unchecked(e.s[k] as usize) };
+    let (op0, _) = chain[0];
+    let mut si = if op0.is_binary() { 2 } else { 1 };
+    let mut ci = usize::from(op0.uses_immediate());
+    let mut v = apply(op0, at(0), at(si - 1), e.c[0]);
+    let mut k = 1;
+    while k < chain.len() {
+        let (op, side) = chain[k];
+        let c = if op.uses_immediate() { e.c[ci] } else { 0.0 };
+        ci += usize::from(op.uses_immediate());
+        v = if op.is_binary() {
+            let z = at(si);
+            si += 1;
+            if side == Side::R { apply(op, z, v, c) } else { apply(op, v, z, c) }
+        } else {
+            apply(op, v, v, c)
+        };
+        k += 1;
+    }
+    v
 }
 
 operations! {
@@ -199,6 +248,119 @@ operations! {
                 x
             }
         };
+
+    @chains {
+        /// `((z - x·c) + w)·c2`, a difference stencil such as `k*(l - 2*T + r)`
+        StencilMulC = [MulC L, Sub R, Add L, MulC L];
+        /// `z - (x + c)·c2`, as in `… - h*(T - Ta)`
+        AddCMulCSubR = [AddC L, MulC L, Sub R];
+        /// `z + (x + c)·c2`
+        AddCMulCAddR = [AddC L, MulC L, Add R];
+        /// `((x + c)·c2) / z`
+        AddCMulCDiv = [AddC L, MulC L, Div L];
+        /// `sqrt(x·c)·c2`, an orifice law such as `-a/A*sqrt(2*g*h)`
+        MulCSqrtMulC = [MulC L, Sqrt L, MulC L];
+        /// `sin(x·c)·c2`
+        MulCSinMulC = [MulC L, Sin L, MulC L];
+        /// `cos(x·c)·c2`
+        MulCCosMulC = [MulC L, Cos L, MulC L];
+        /// `(z - x·c) + w`
+        MulCSubAdd = [MulC L, Sub R, Add L];
+        /// `sin(x)·c - z`
+        SinMulCSub = [Sin L, MulC L, Sub L];
+        /// `z + sin(x)·c`
+        SinMulCAddR = [Sin L, MulC L, Add R];
+        /// `z + cos(x)·c`
+        CosMulCAddR = [Cos L, MulC L, Add R];
+        /// `z - (x·c)·w`
+        MulCMulSubR = [MulC L, Mul L, Sub R];
+        /// `(x + c)² + z`
+        AddCSqAdd = [AddC L, Sq L, Add L];
+        /// `x·y + z`
+        MulAdd = [Mul L, Add L];
+        /// `z + x·y`
+        MulAddR = [Mul L, Add R];
+        /// `x·y - z`
+        MulSub = [Mul L, Sub L];
+        /// `z - x·y`
+        MulSubR = [Mul L, Sub R];
+        /// `x·c + z`
+        MulCAdd = [MulC L, Add L];
+        /// `z + x·c`
+        MulCAddR = [MulC L, Add R];
+        /// `x·c - z`
+        MulCSub = [MulC L, Sub L];
+        /// `z - x·c`
+        MulCSubR = [MulC L, Sub R];
+        /// `(x + y)·c`
+        AddMulC = [Add L, MulC L];
+        /// `(x - y)·c`
+        SubMulC = [Sub L, MulC L];
+        /// `(x + c)·c2`
+        AddCMulC = [AddC L, MulC L];
+        /// `x·c + c2`
+        MulCAddC = [MulC L, AddC L];
+        /// `(x·c)·z`
+        MulCMul = [MulC L, Mul L];
+        /// `z·(x·c)`
+        MulCMulR = [MulC L, Mul R];
+        /// `(x·c) / z`
+        MulCDiv = [MulC L, Div L];
+        /// `(x·y) / z`
+        MulDiv = [Mul L, Div L];
+        /// `(x·y)·z`
+        MulMul = [Mul L, Mul L];
+        /// `(x·y)·c`
+        MulMulC = [Mul L, MulC L];
+        /// `sqrt(x)·c`
+        SqrtMulC = [Sqrt L, MulC L];
+        /// `sqrt(x·c)`
+        MulCSqrt = [MulC L, Sqrt L];
+        /// `sin(x·c)`
+        MulCSin = [MulC L, Sin L];
+        /// `cos(x·c)`
+        MulCCos = [MulC L, Cos L];
+        /// `sin(x)·c`
+        SinMulC = [Sin L, MulC L];
+        /// `cos(x)·c`
+        CosMulC = [Cos L, MulC L];
+        /// `exp(x·c)`
+        MulCExp = [MulC L, Exp L];
+        /// `(x + y) + z`
+        AddAdd = [Add L, Add L];
+        /// `(x - y) + z`
+        SubAdd = [Sub L, Add L];
+        /// `(x + y) - z`
+        AddSub = [Add L, Sub L];
+        /// `(x - y) - z`
+        SubSub = [Sub L, Sub L];
+        /// `z + (x + y)`
+        AddAddR = [Add L, Add R];
+        /// `z - (x + y)`
+        AddSubR = [Add L, Sub R];
+        /// `z + (x - y)`
+        SubAddR = [Sub L, Add R];
+        /// `z - (x - y)`
+        SubSubR = [Sub L, Sub R];
+        /// `z + x / y`
+        DivAddR = [Div L, Add R];
+        /// `z - x / y`
+        DivSubR = [Div L, Sub R];
+        /// `x / y + z`
+        DivAdd = [Div L, Add L];
+        /// `x / y - z`
+        DivSub = [Div L, Sub L];
+        /// `x² + z`
+        SqAdd = [Sq L, Add L];
+        /// `z + x²`
+        SqAddR = [Sq L, Add R];
+        /// `z·|x|`
+        AbsMulR = [Abs L, Mul R];
+        /// `|x|·z`
+        AbsMul = [Abs L, Mul L];
+        /// `-(x·y)`
+        MulNeg = [Mul L, Neg L];
+    }
 }
 
 impl Op {
@@ -248,24 +410,32 @@ pub struct Program {
     xoutputs: Vec<u32>,
 }
 
-/// Step `k` of the interpreter: `x[first + k] = op(x[a], x[b], x[d], c)`
-/// over the interpreter's slot array `x` (see [`Program`]'s fields).
+/// Most slots and immediates one step reads.
+const STEP_SLOTS: usize = 4;
+const STEP_IMMS: usize = 3;
+
+/// Step `k` of the interpreter: `x[first + k] = op(…)` over the
+/// interpreter's slot array `x` (see [`Program`]'s fields), reading the
+/// slots `s` and the immediates `c` (unused entries are slot 0 and 0.0).
 #[derive(Clone, Copy, Debug)]
 struct Exec {
     op: XOp,
-    a: u32,
-    b: u32,
-    d: u32,
-    c: f64,
+    s: [u32; STEP_SLOTS],
+    c: [f64; STEP_IMMS],
 }
 
 /// The interpreter's tape for a checked plain tape, and where it leaves the
-/// outputs. An instruction whose result is used exactly once, by one
-/// instruction, and is not an output, may be fused into that user and then
-/// has no slot of its own; the others keep their order, each writing the
-/// next slot after the inputs and constants.
+/// outputs.
+///
+/// Runs of instructions where each result is used exactly once, by the next
+/// one, and is not an output, become one step when they form one of the
+/// [`CHAINS`]; the step keeps the intermediate results in registers and
+/// rounds after each operation exactly like the plain instructions (none is
+/// a fused multiply-add), so results are bit-identical with the plain tape.
+/// Chains are chosen from the last instruction back, longest first, so a
+/// long chain is not cut short by a shorter one below it. The steps keep the
+/// tape's order, each writing the next slot after the inputs and constants.
 fn fuse_tape(first: usize, insts: &[Inst], outputs: &[u32]) -> (Vec<Exec>, Vec<u32>) {
-    use Op::*;
     let total = first + insts.len();
     let mut uses = vec![0u32; total];
     for &o in outputs {
@@ -278,44 +448,19 @@ fn fuse_tape(first: usize, insts: &[Inst], outputs: &[u32]) -> (Vec<Exec>, Vec<u
         }
     }
     let mut absorbed = vec![false; insts.len()];
-    let mut fused: Vec<Option<Exec>> = vec![None; insts.len()];
-    for (k, i) in insts.iter().enumerate() {
-        // The operand at slot `s`, when it is a plain instruction used only here.
-        let single = |s: u32, fused: &[Option<Exec>], absorbed: &[bool]| -> Option<(usize, Inst)> {
-            let j = (s as usize).checked_sub(first)?;
-            (uses[s as usize] == 1 && fused[j].is_none() && !absorbed[j]).then_some((j, insts[j]))
-        };
-        let mk = |op, a, b, d, c| Exec { op, a, b, d, c };
-        let pick = match i.op {
-            Add | Sub => {
-                let add = i.op == Add;
-                match (single(i.a, &fused, &absorbed), single(i.b, &fused, &absorbed)) {
-                    (_, Some((j, m))) if m.op == MulC => {
-                        Some((j, mk(if add { XOp::AddMulC } else { XOp::SubMulC }, i.a, m.a, i.a, m.c)))
-                    }
-                    (Some((j, m)), _) if m.op == MulC => Some((
-                        j,
-                        if add { mk(XOp::AddMulC, i.b, m.a, i.b, m.c) } else { mk(XOp::MulCSub, m.a, i.b, m.a, m.c) },
-                    )),
-                    (_, Some((j, m))) if m.op == Mul => {
-                        Some((j, mk(if add { XOp::MulAdd } else { XOp::NegMulAdd }, m.a, m.b, i.a, 0.0)))
-                    }
-                    (Some((j, m)), _) if m.op == Mul => {
-                        Some((j, mk(if add { XOp::MulAdd } else { XOp::MulSub }, m.a, m.b, i.b, 0.0)))
-                    }
-                    _ => None,
+    let mut steps: Vec<Option<Exec>> = vec![None; insts.len()];
+    for k in (0..insts.len()).rev() {
+        if absorbed[k] {
+            continue;
+        }
+        for &(op, chain) in CHAINS {
+            if let Some((e, members)) = match_chain(chain, k, first, insts, &uses, &absorbed) {
+                for m in members {
+                    absorbed[m] = true;
                 }
+                steps[k] = Some(Exec { op, ..e });
+                break;
             }
-            MulC => match single(i.a, &fused, &absorbed) {
-                Some((j, m)) if m.op == Add => Some((j, mk(XOp::AddThenMulC, m.a, m.b, m.a, i.c))),
-                Some((j, m)) if m.op == Sub => Some((j, mk(XOp::SubThenMulC, m.a, m.b, m.a, i.c))),
-                _ => None,
-            },
-            _ => None,
-        };
-        if let Some((j, e)) = pick {
-            absorbed[j] = true;
-            fused[k] = Some(e);
         }
     }
     // Renumber: inputs and constants stay; kept instructions close up.
@@ -326,12 +471,68 @@ fn fuse_tape(first: usize, insts: &[Inst], outputs: &[u32]) -> (Vec<Exec>, Vec<u
         if absorbed[k] {
             continue;
         }
-        let e = fused[k].unwrap_or(Exec { op: XOp::plain(i.op), a: i.a, b: i.b, d: i.a, c: i.c });
-        exec.push(Exec { a: at[e.a as usize], b: at[e.b as usize], d: at[e.d as usize], ..e });
+        let e = steps[k].unwrap_or(Exec { op: XOp::plain(i.op), s: [i.a, i.b, 0, 0], c: [i.c, 0.0, 0.0] });
+        exec.push(Exec { s: e.s.map(|s| at[s as usize]), ..e });
         at[first + k] = (first + exec.len() - 1) as u32;
     }
     let outs = outputs.iter().map(|&o| at[o as usize]).collect();
     (exec, outs)
+}
+
+/// Whether `chain` ends at instruction `k`, reaching back through results
+/// used only by the next member: the step (its operation still unset) and
+/// the members it absorbs.
+fn match_chain(
+    chain: Chain,
+    k: usize,
+    first: usize,
+    insts: &[Inst],
+    uses: &[u32],
+    absorbed: &[bool],
+) -> Option<(Exec, Vec<usize>)> {
+    let (n_slots, n_imms) = chain_needs(chain);
+    if n_slots > STEP_SLOTS || n_imms > STEP_IMMS {
+        return None;
+    }
+    let mut cur = k;
+    let mut members = Vec::new();
+    // The other operands and immediates of the later members, last first.
+    let mut slots_rev = Vec::new();
+    let mut imms_rev = Vec::new();
+    for &(op, side) in chain[1..].iter().rev() {
+        let i = insts[cur];
+        if i.op != op {
+            return None;
+        }
+        let (prev, other) = if op.is_binary() && side == Side::R { (i.b, i.a) } else { (i.a, i.b) };
+        if op.is_binary() {
+            slots_rev.push(other);
+        }
+        if op.uses_immediate() {
+            imms_rev.push(i.c);
+        }
+        let j = (prev as usize).checked_sub(first)?;
+        if uses[prev as usize] != 1 || absorbed[j] {
+            return None;
+        }
+        members.push(j);
+        cur = j;
+    }
+    let i = insts[cur];
+    if i.op != chain[0].0 {
+        return None;
+    }
+    let mut s = [0u32; STEP_SLOTS];
+    let mut c = [0.0; STEP_IMMS];
+    let head_slots: &[u32] = if i.op.is_binary() { &[i.a, i.b] } else { &[i.a] };
+    for (d, v) in s.iter_mut().zip(head_slots.iter().chain(slots_rev.iter().rev())) {
+        *d = *v;
+    }
+    let head_imm = i.op.uses_immediate().then_some(i.c);
+    for (d, v) in c.iter_mut().zip(head_imm.iter().chain(imms_rev.iter().rev())) {
+        *d = *v;
+    }
+    Some((Exec { op: XOp::plain(i.op), s, c }, members))
 }
 
 impl Program {
@@ -435,14 +636,13 @@ impl Program {
         for (k, e) in self.exec.iter().enumerate() {
             // SAFETY: `exec` comes from `fuse_tape` over instructions that
             // `Program::new`, the only constructor, checked to read earlier
-            // slots only; the renumbering keeps every operand of step `k`
-            // below `first + k`, and `load` confirmed that `x` has
-            // `first + exec.len()` slots (nothing resizes it).
+            // slots only; the renumbering keeps every slot that step `k`
+            // reads (its unused ones are slot 0) below `first + k`, and
+            // `load` confirmed that `x` has `first + exec.len()` slots
+            // (nothing resizes it).
             unsafe {
-                let a = *x.get_unchecked(e.a as usize);
-                let b = *x.get_unchecked(e.b as usize);
-                let d = *x.get_unchecked(e.d as usize);
-                *x.get_unchecked_mut(first + k) = exec_apply(e.op, a, b, d, e.c);
+                let v = exec(e, x);
+                *x.get_unchecked_mut(first + k) = v;
             }
         }
     }
@@ -495,4 +695,22 @@ fn load<'s>(slots: &'s mut [f64], n: usize, dim: usize, t: f64, y: &[f64]) -> Op
         *s = v;
     }
     Some(slots)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_chain_fits_a_step_and_reads_its_previous_result() {
+        for &(op, chain) in CHAINS {
+            let (slots, imms) = chain_needs(chain);
+            assert!(chain.len() >= 2 && slots <= STEP_SLOTS && imms <= STEP_IMMS, "{op:?}");
+            for &(o, side) in &chain[1..] {
+                assert!(side == Side::L || o.is_binary(), "{op:?}: {o:?} has no second operand");
+            }
+        }
+        // Longest first, so that a long chain is tried before its tail.
+        assert!(CHAINS.windows(2).all(|w| w[0].1.len() >= w[1].1.len()));
+    }
 }

@@ -24,6 +24,27 @@ fn error_with(message: &str, props: &[(&str, f64)]) -> JsValue {
     e.into()
 }
 
+/// A string argument, or a plain `Error` naming it. Strings and number
+/// slices are taken as `JsValue`: the glue's own conversion aborts the
+/// instance on a value of another type.
+fn text_arg(v: &JsValue, what: &str) -> Result<String, JsValue> {
+    v.as_string().ok_or_else(|| error_with(&format!("{what} must be a string"), &[]))
+}
+
+/// A number-array argument (a `Float64Array` or an array of numbers), or a
+/// plain `Error` naming it.
+fn numbers_arg(v: &JsValue, what: &str) -> Result<Vec<f64>, JsValue> {
+    if let Some(a) = v.dyn_ref::<js_sys::Float64Array>() {
+        return Ok(a.to_vec());
+    }
+    let bad = || error_with(&format!("{what} must be an array of numbers"), &[]);
+    if !js_sys::Array::is_array(v) {
+        return Err(bad());
+    }
+    let a: &js_sys::Array = v.unchecked_ref();
+    (0..a.length()).map(|i| a.get(i).as_f64().ok_or_else(bad)).collect()
+}
+
 fn api_error(e: api::ApiError) -> JsValue {
     match e {
         api::ApiError::Sheet(f) => error_with(&f.message(), &[("line", f.line as f64), ("column", f.column as f64)]),
@@ -74,23 +95,31 @@ fn request<T: serde::de::DeserializeOwned + Default>(v: JsValue, what: &str) -> 
 /// (see `api::compare`). `progress(done, total)` is called after each run
 /// when it is a function.
 #[wasm_bindgen(js_name = compareMethods)]
-pub fn compare_methods(sheet: &str, settings: JsValue, request_: JsValue, progress: JsValue) -> Result<JsValue, JsValue> {
+pub fn compare_methods(sheet: JsValue, settings: JsValue, request_: JsValue, progress: JsValue) -> Result<JsValue, JsValue> {
+    let sheet = &text_arg(&sheet, "the sheet")?;
     let base: api::RunRequest = request(settings, "settings")?;
     let req: api::compare::CompareRequest = request(request_, "comparison")?;
-    let callback = progress.dyn_into::<js_sys::Function>().ok();
-    let mut report = |done: usize, total: usize| {
-        if let Some(f) = &callback {
-            let _ = f.call2(&JsValue::NULL, &JsValue::from(done as u32), &JsValue::from(total as u32));
-        }
-    };
-    let rep = api::compare::compare(sheet, &base, &req, &mut report).map_err(api_error)?;
+    let mut report = progress_fn(progress);
+    let rep = api::compare::compare(sheet, &base, &req, &mut |done, total| report(done as u64, total as u64)).map_err(api_error)?;
     to_js(&rep)
+}
+
+/// `progress(done, total)` as a Rust callback: calls the JS function when
+/// `progress` is one (`total` 0 when the total is not known), else nothing.
+fn progress_fn(progress: JsValue) -> impl FnMut(u64, u64) {
+    let callback = progress.dyn_into::<js_sys::Function>().ok();
+    move |done: u64, total: u64| {
+        if let Some(f) = &callback {
+            let _ = f.call2(&JsValue::NULL, &JsValue::from(done as f64), &JsValue::from(total as f64));
+        }
+    }
 }
 
 /// The field view's numbers for `sheet` (see `api::field`): the slope field
 /// or phase plane, nullclines, and curves through the requested starts.
 #[wasm_bindgen(js_name = fieldView)]
-pub fn field_view(sheet: &str, settings: JsValue, request_: JsValue) -> Result<JsValue, JsValue> {
+pub fn field_view(sheet: JsValue, settings: JsValue, request_: JsValue) -> Result<JsValue, JsValue> {
+    let sheet = &text_arg(&sheet, "the sheet")?;
     let base: api::RunRequest = request(settings, "settings")?;
     let req: api::field::FieldRequest = request(request_, "field view")?;
     let rep = api::field::field_view(sheet, &base, &req).map_err(api_error)?;
@@ -122,8 +151,9 @@ fn mark_shape(code: u8) -> draw::MarkShape {
 impl Plot {
     /// An empty plot with its axis labels.
     #[wasm_bindgen(constructor)]
-    pub fn new(x_label: &str, y_label: &str) -> Plot {
-        Plot { fig: draw::Figure { x_label: x_label.into(), y_label: y_label.into(), ..Default::default() } }
+    pub fn new(x_label: JsValue, y_label: JsValue) -> Result<Plot, JsValue> {
+        let (x_label, y_label) = (text_arg(&x_label, "the x label")?, text_arg(&y_label, "the y label")?);
+        Ok(Plot { fig: draw::Figure { x_label, y_label, ..Default::default() } })
     }
 
     /// Show exactly this window (data units); otherwise it is fitted to the data.
@@ -146,38 +176,43 @@ impl Plot {
 
     /// Add a polyline. `colour` is a palette index (negative for ink).
     #[allow(clippy::too_many_arguments)]
-    pub fn line(&mut self, label: &str, x: &[f64], y: &[f64], colour: i32, width: u32, dashed: bool, dots: bool) {
+    pub fn line(&mut self, label: JsValue, x: JsValue, y: JsValue, colour: i32, width: u32, dashed: bool, dots: bool) -> Result<(), JsValue> {
+        let label = text_arg(&label, "a line's label")?;
+        let (mut x, mut y) = (numbers_arg(&x, "a line's x")?, numbers_arg(&y, "a line's y")?);
         let n = x.len().min(y.len());
-        self.fig.lines.push(draw::Line {
-            label: label.into(),
-            x: x[..n].to_vec(),
-            y: y[..n].to_vec(),
-            colour,
-            width,
-            dashed,
-            dots,
-        });
+        x.truncate(n);
+        y.truncate(n);
+        self.fig.lines.push(draw::Line { label, x, y, colour, width, dashed, dots });
+        Ok(())
     }
 
     /// Add a labelled point: `shape` 0 dot, 1 peak, 2 trough.
-    pub fn mark(&mut self, x: f64, y: f64, label: &str, shape: u8, colour: i32) {
-        self.fig.marks.push(draw::Mark { x, y, label: label.into(), shape: mark_shape(shape), colour });
+    pub fn mark(&mut self, x: f64, y: f64, label: JsValue, shape: u8, colour: i32) -> Result<(), JsValue> {
+        let label = text_arg(&label, "a mark's label")?;
+        self.fig.marks.push(draw::Mark { x, y, label, shape: mark_shape(shape), colour });
+        Ok(())
     }
 
     /// Add a vertical rule with a label at its top (an event time).
-    pub fn rule(&mut self, x: f64, label: &str) {
-        self.fig.rules.push(draw::Rule { x, label: label.into() });
+    pub fn rule(&mut self, x: f64, label: JsValue) -> Result<(), JsValue> {
+        let label = text_arg(&label, "a rule's label")?;
+        self.fig.rules.push(draw::Rule { x, label });
+        Ok(())
     }
 
     /// Set the direction field: flat `[x, y, dx, dy, ...]`, with arrow heads or not.
-    pub fn field(&mut self, samples: &[f64], arrows: bool) {
+    pub fn field(&mut self, samples: JsValue, arrows: bool) -> Result<(), JsValue> {
+        let samples = numbers_arg(&samples, "the field samples")?;
         self.fig.field = samples.chunks_exact(4).map(|c| [c[0], c[1], c[2], c[3]]).collect();
         self.fig.arrows = arrows;
+        Ok(())
     }
 
     /// Draw on `canvas` at its pixel size. Returns the frame
     /// `[left, top, right, bottom, x0, x1, y0, y1]` (log10 units on log axes).
-    pub fn draw(&self, canvas: web_sys::HtmlCanvasElement) -> Result<Vec<f64>, JsValue> {
+    pub fn draw(&self, canvas: JsValue) -> Result<Vec<f64>, JsValue> {
+        let canvas: web_sys::HtmlCanvasElement =
+            canvas.dyn_into().map_err(|_| error_with("a plot draws on a <canvas> element", &[]))?;
         let ctx = canvas
             .get_context("2d")
             .ok()

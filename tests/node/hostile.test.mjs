@@ -5,7 +5,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
-import { initSync, solve, testPanic, dropInstance } from "../../www/pkg/ratebook.js";
+import { initSync, solve, testPanic, dropInstance, compareMethods, fieldView, checkAccuracy, convergenceStudy, stabilityRegion, stabilitySvg, Plot } from "../../www/pkg/ratebook.js";
 import { initGuard, guarded, SolverPanic, panicsRecovered } from "../../www/guard.js";
 
 const module = new WebAssembly.Module(readFileSync(new URL("../../www/pkg/ratebook_bg.wasm", import.meta.url)));
@@ -114,6 +114,66 @@ test("sheets of the wrong type or size give an Error", () => {
   refused(huge, { to: 1 }, /line/);
   const long = `dy/dt = -y${" + 0*y".repeat(4000)}\ny(0) = 1\n`;
   refused(long, { to: 1 });
+});
+
+test("every export refuses arguments of the wrong type with an Error, and the solver goes on", () => {
+  const clean = (f, pattern, what) => assert.throws(f, (e) => {
+    assert.ok(e instanceof Error, `${what}: not an Error: ${e}`);
+    assert.ok(!(e instanceof WebAssembly.RuntimeError), `${what}: the solver aborted: ${e.message}`);
+    assert.match(e.message, pattern, what);
+    return true;
+  });
+  for (const bad of [undefined, null, 42, {}, [], true, Symbol.iterator, () => "x", 10n]) {
+    const what = typeof bad === "symbol" ? "a symbol" : String(bad);
+    clean(() => compareMethods(bad, { to: 1 }), /sheet must be a string/, `compareMethods(${what})`);
+    clean(() => fieldView(bad, { to: 1 }), /sheet must be a string/, `fieldView(${what})`);
+    clean(() => checkAccuracy(bad, { to: 1 }), /sheet must be a string/, `checkAccuracy(${what})`);
+    clean(() => convergenceStudy(bad, { to: 1, step: 0.1 }), /sheet must be a string/, `convergenceStudy(${what})`);
+    clean(() => stabilityRegion(bad, [0, 0]), /method must be a string/, `stabilityRegion(${what})`);
+    clean(() => stabilitySvg("rk4", bad, [0, 0], 100, 100), /title must be a string/, `stabilitySvg(${what})`);
+    clean(() => new Plot(bad, "y"), /x label must be a string/, `new Plot(${what})`);
+    const p = new Plot("x", "y");
+    clean(() => p.line(bad, [0, 1], [0, 1], 0, 1, false, false), /label must be a string/, `line label ${what}`);
+    clean(() => p.mark(0, 0, bad, 0, 0), /label must be a string/, `mark label ${what}`);
+    clean(() => p.rule(0, bad), /label must be a string/, `rule label ${what}`);
+    if (!Array.isArray(bad)) {
+      clean(() => p.line("a", bad, [0, 1], 0, 1, false, false), /array of numbers/, `line x ${what}`);
+      clean(() => p.field(bad, true), /array of numbers/, `field ${what}`);
+      clean(() => stabilityRegion("rk4", bad), /array of numbers/, `stabilityRegion points ${what}`);
+    }
+    // The same plot still takes good input and draws.
+    p.line("a", [0, 1], new Float64Array([0, 1]), 0, 1, false, false);
+    assert.match(p.svg(200, 150), /<svg/);
+    p.free();
+  }
+  // Arrays holding something other than numbers are refused too.
+  const p = new Plot("x", "y");
+  clean(() => p.line("a", [0, "1"], [0, 1], 0, 1, false, false), /array of numbers/, "a string in x");
+  clean(() => p.field([0, 0, 1, {}], true), /array of numbers/, "an object in the field");
+  // Drawing needs a canvas; in Node there is none, and that is an Error too.
+  clean(() => p.draw({ width: 10 }), /canvas/, "draw on a non-canvas");
+  p.free();
+  // Good calls still work after all of that.
+  assert.equal(compareMethods(DECAY, { to: 1 }, { step: 0.1 }).runs.length > 0, true);
+  assert.equal(fieldView(DECAY, { to: 1 }).kind, "slope");
+  assert.equal(bounded(solve(DECAY, { to: 1 })).status, "finished");
+});
+
+test("the accuracy check and the convergence study report progress: unknown total, then an estimate", () => {
+  const seen = [];
+  checkAccuracy(DECAY, { to: 400, rtol: 1e-11 }, (done, total) => seen.push([done, total]));
+  assert.ok(seen.length >= 1);
+  assert.ok(seen.slice(0, -1).every(([, total]) => total === 0), "the check cannot tell its total beforehand");
+  assert.ok(seen.at(-1)[0] === seen.at(-1)[1] && seen.at(-1)[1] > 0, "the last report is complete");
+  const conv = [];
+  convergenceStudy(DECAY, { to: 10, method: "rk4", step: 0.001 }, (done, total) => conv.push([done, total]));
+  // RK4: 10 000 steps at h, 1 + 2 + 4 + 8 times that in all, four stages each.
+  assert.ok(conv.length > 10);
+  assert.ok(conv.every(([, total]) => total === 10000 * 15 * 4));
+  assert.ok(conv.every(([d], i) => i === 0 || d >= conv[i - 1][0]), "done only grows");
+  assert.deepEqual(conv.at(-1), [600000, 600000]);
+  // A progress argument that is not a function is ignored.
+  assert.ok(convergenceStudy(DECAY, { to: 1, method: "rk4", step: 0.1 }, 42).lines.length > 0);
 });
 
 test("200 states solve within the caps", () => {
