@@ -14,7 +14,7 @@
 use std::time::Instant;
 
 use ratebook::problems::by_name;
-use ratebook::solve::control::{initial_step, PiController, FAC_MAX};
+use ratebook::solve::control::{initial_step, PiController};
 use ratebook::problems::nonstiff::bench_rhs;
 use ratebook::solve::{method, solve, Settings, Stats, Tolerance};
 
@@ -95,7 +95,7 @@ fn main() {
             let mut stats = Stats::default();
             let tol = settings.tol;
             let mut h = initial_step(model.as_mut(), p.t0, &p.y0, 1.0, m.order, &tol, p.t_end, &mut stats);
-            let mut ctrl = PiController::new(tab.error_order);
+            let mut ctrl = PiController::new(tab.error_order, tab.control);
             let (mut t, mut y, mut yn) = (p.t0, p.y0.clone(), p.y0.clone());
             while t < p.t_end {
                 let hh = h.min(p.t_end - t);
@@ -105,7 +105,7 @@ fn main() {
                     st.accept();
                     t += hh;
                     std::mem::swap(&mut y, &mut yn);
-                    h = hh * if e > 0.0 { ctrl.accepted(e) } else { FAC_MAX };
+                    h = hh * ctrl.accepted(e);
                 } else {
                     h = hh * ctrl.rejected(e);
                 }

@@ -2,6 +2,12 @@
 //! steps for a few problems, to catch a change of the controller, the initial
 //! step or the FSAL reuse that no accuracy test would see. When a deliberate
 //! change moves them, check the accuracy tests and the bench, then update.
+//!
+//! Last moved when the explicit pairs took the controller constants of
+//! Hairer's codes (`dopri5`'s for dp54 and bs32, rejections with the PI
+//! exponent; `dop853`'s β = 0 and factors 0.333 to 6 for dp853): fewer
+//! evaluations at equal error on the bench overall, more rejections on Lorenz
+//! with dp853.
 
 use ratebook::problems::nonstiff::*;
 use ratebook::problems::FnProblem;
@@ -19,16 +25,16 @@ fn counted(method: &str, tol: f64, to: f64, problem: &mut dyn ratebook::problem:
 #[test]
 fn arenstorf_work_counts() {
     let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
-    assert_eq!(counted("dp54", 1e-6, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(993, 140, 25));
-    assert_eq!(counted("dp853", 1e-9, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(2295, 144, 47));
-    assert_eq!(counted("bs32", 1e-4, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(603, 178, 22));
+    assert_eq!(counted("dp54", 1e-6, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(987, 139, 25));
+    assert_eq!(counted("dp853", 1e-9, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(2235, 136, 50));
+    assert_eq!(counted("bs32", 1e-4, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(606, 178, 23));
 }
 
 #[test]
 fn lorenz_work_counts() {
     let mut p = FnProblem::new(&["x", "y", "z"], lorenz_rhs);
-    assert_eq!(counted("dp54", 1e-6, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(4797, 766, 33));
-    assert_eq!(counted("dp853", 1e-9, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(7863, 612, 43));
+    assert_eq!(counted("dp54", 1e-6, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(4755, 765, 27));
+    assert_eq!(counted("dp853", 1e-9, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(8595, 592, 124));
 }
 
 #[test]

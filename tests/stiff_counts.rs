@@ -24,7 +24,8 @@ fn van_der_pol_1000_work_counts() {
     let vdp = |m: &str| counts(&mut VanDerPol::new(1000.0), &[2.0, 0.0], adaptive(m, 3000.0, 1e-6, 1e-6));
     assert_eq!(vdp("rodas4"), (6198, 916, 916, 1056));
     assert_eq!(vdp("radau5"), (9179, 865, 204, 726));
-    assert_eq!(vdp("auto"), (6793, 572, 158, 456));
+    // auto starts on dp54, whose controller took the `dopri5` constants.
+    assert_eq!(vdp("auto"), (6805, 573, 158, 456));
 }
 
 #[test]

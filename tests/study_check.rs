@@ -85,3 +85,19 @@ fn fixed_step_estimates_bracket_the_true_error() {
     }
     assert!(bad.is_empty(), "{} of {n} outside [0.1, 10]:\n{}", bad.len(), bad.join("\n"));
 }
+
+/// A long undamped oscillation at a loose tolerance: the explicit and the
+/// implicit method drift apart in phase, so the cross-check must say they do
+/// not agree, not "agree to at least 0 digits" (the phase error of a method
+/// of order p grows like t·h^p: common practice, no source).
+#[test]
+fn cross_check_says_plainly_when_methods_do_not_agree() {
+    let mut m = ratebook::sheet::compile("x'' = -x\nx(0) = 1\nx'(0) = 0\n").unwrap();
+    let (t0, y0) = (m.t0(), m.initial_state().to_vec());
+    let s = Settings { to: 60.0, tol: Tolerance { rtol: 1e-2, atol: 1e-4 }, ..Settings::default() };
+    let r = check(&mut m, t0, &y0, &s, "t", &Options { shown_digits: 4, cross_method: true }).unwrap();
+    let c = r.cross.expect("the cross-check ran");
+    assert_eq!(c.least, Some(0), "{}", c.sentence);
+    assert!(c.sentence.contains("do not agree even to one digit"), "{}", c.sentence);
+    assert!(!c.sentence.contains("at least 0"), "{}", c.sentence);
+}

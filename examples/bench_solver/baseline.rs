@@ -2,7 +2,7 @@
 //! embedded pair written out plainly, shared by `bench_solver` and
 //! `bench_solver_parts`.
 
-use ratebook::solve::control::{PiController, FAC_MAX};
+use ratebook::solve::control::PiController;
 use ratebook::solve::tableau::{ErrorEstimate, Tableau};
 
 fn rms(e: &[f64], y: &[f64], z: &[f64], rtol: f64, atol: f64) -> f64 {
@@ -46,7 +46,7 @@ pub fn baseline<const N: usize>(tab: &Tableau, f: impl Fn(f64, &[f64], &mut [f64
     let m = d1.max(d2);
     let h1 = if m <= 1e-15 { (h0 * 1e-3).max(1e-6) } else { (0.01 / m).powf(1.0 / (tab.order as f64 + 1.0)) };
     let mut h = (100.0 * h0).min(h1).min(t_end);
-    let mut ctrl = PiController::new(tab.error_order);
+    let mut ctrl = PiController::new(tab.error_order, tab.control);
     let mut t = 0.0;
     let mut first_ready = false;
     let mut stage = [0.0; N];
@@ -99,7 +99,7 @@ pub fn baseline<const N: usize>(tab: &Tableau, f: impl Fn(f64, &[f64], &mut [f64
             t = if last { t_end } else { t + h };
             y.copy_from_slice(&stage);
             k.swap(0, s - 1);
-            h *= if en > 0.0 { ctrl.accepted(en) } else { FAC_MAX };
+            h *= ctrl.accepted(en);
         } else {
             h *= ctrl.rejected(en);
         }

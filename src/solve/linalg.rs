@@ -38,21 +38,43 @@ impl Derivatives {
     /// common practice) and costs `n` right-hand-side evaluations. Counts one
     /// Jacobian either way.
     pub fn jacobian(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], f0: &[f64], stats: &mut Stats) -> Result<(), StepFault> {
-        let n = y.len();
         stats.jacobians += 1;
         if !problem.jacobian(t, y, &mut self.jac) {
-            self.shifted.copy_from_slice(y);
-            for j in 0..n {
-                let delta = (f64::EPSILON * y[j].abs().max(1e-5)).sqrt();
-                self.shifted[j] = y[j] + delta;
-                problem.rhs(t, &self.shifted, &mut self.f_shifted);
-                stats.rhs_evals += 1;
-                self.shifted[j] = y[j];
-                for i in 0..n {
-                    self.jac[i * n + j] = (self.f_shifted[i] - f0[i]) / delta;
-                }
+            self.differences(problem, t, y, f0, stats);
+        }
+        self.finite_jacobian()
+    }
+
+    /// [`Derivatives::jacobian`] where `f(t, y)` is not at hand: it is
+    /// evaluated (and counted) only when finite differences need it.
+    pub fn jacobian_at(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], stats: &mut Stats) -> Result<(), StepFault> {
+        stats.jacobians += 1;
+        if !problem.jacobian(t, y, &mut self.jac) {
+            let mut f0 = vec![0.0; y.len()];
+            problem.rhs(t, y, &mut f0);
+            stats.rhs_evals += 1;
+            self.differences(problem, t, y, &f0, stats);
+        }
+        self.finite_jacobian()
+    }
+
+    /// The forward-difference Jacobian around `f0 = f(t, y)`.
+    fn differences(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], f0: &[f64], stats: &mut Stats) {
+        let n = y.len();
+        self.shifted.copy_from_slice(y);
+        for j in 0..n {
+            let delta = (f64::EPSILON * y[j].abs().max(1e-5)).sqrt();
+            self.shifted[j] = y[j] + delta;
+            problem.rhs(t, &self.shifted, &mut self.f_shifted);
+            stats.rhs_evals += 1;
+            self.shifted[j] = y[j];
+            for i in 0..n {
+                self.jac[i * n + j] = (self.f_shifted[i] - f0[i]) / delta;
             }
         }
+    }
+
+    fn finite_jacobian(&self) -> Result<(), StepFault> {
         if self.jac.iter().all(|v| v.is_finite()) {
             Ok(())
         } else {

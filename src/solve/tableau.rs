@@ -11,6 +11,8 @@
 //! `y(t + θh) = y + h Σ_i B_i(θ) k_i` with polynomial weights `B_i(θ)` (see
 //! [`Dense`]); the tests check the order conditions of both.
 
+use super::control::StepControl;
+
 /// The exact fraction `n / d`, evaluated at compile time to the nearest `f64`.
 pub const fn q(n: i64, d: i64) -> f64 {
     n as f64 / d as f64
@@ -88,6 +90,9 @@ pub struct Tableau {
     pub error_order: u32,
     /// The continuous extension.
     pub dense: Dense,
+    /// The constants of the step-size controller (unused without an error
+    /// estimate).
+    pub control: StepControl,
     /// Two stages `(i, j)` evaluated at nearby points, for Hairer's stiffness
     /// test `h·ρ ≈ h ‖k_i - k_j‖ / ‖g_i - g_j‖` on the stage arguments `g`.
     pub stiffness_pair: Option<(usize, usize)>,
@@ -145,6 +150,7 @@ pub static EULER: Tableau = Tableau {
     error: ErrorEstimate::None,
     error_order: 0,
     dense: Dense::Linear,
+    control: StepControl::GENERAL,
     stiffness_pair: None,
 };
 
@@ -159,6 +165,7 @@ pub static HEUN: Tableau = Tableau {
     error: ErrorEstimate::None,
     error_order: 0,
     dense: Dense::Hermite,
+    control: StepControl::GENERAL,
     stiffness_pair: None,
 };
 
@@ -173,6 +180,7 @@ pub static MIDPOINT: Tableau = Tableau {
     error: ErrorEstimate::None,
     error_order: 0,
     dense: Dense::Hermite,
+    control: StepControl::GENERAL,
     stiffness_pair: None,
 };
 
@@ -188,6 +196,7 @@ pub static RK4: Tableau = Tableau {
     error: ErrorEstimate::None,
     error_order: 0,
     dense: Dense::Hermite,
+    control: StepControl::GENERAL,
     stiffness_pair: None,
 };
 
@@ -204,8 +213,12 @@ pub static BS32: Tableau = Tableau {
     error: ErrorEstimate::Embedded { b_hat: &[q(7, 24), 0.25, q(1, 3), 0.125] },
     error_order: 3,
     dense: Dense::Hermite,
-    // Stages 3 and 4 sit at c = 3/4 and 1; their difference still measures the Jacobian's spectral radius.
-    stiffness_pair: Some((2, 3)),
+    // No two stages share an abscissa, so Hairer's stiffness test has no pair:
+    // stages 3 and 4 (c = 3/4 and 1) mix ∂f/∂t into the difference, and on
+    // y' = −1000 (y − cos t) − sin t their estimate of |h·λ| came out near
+    // 0.01 while the steps sat at the stability limit (measured).
+    control: StepControl::DOPRI5,
+    stiffness_pair: None,
 };
 
 /// Dormand–Prince 5(4): order 5 (local extrapolation) with an embedded order-4
@@ -246,6 +259,7 @@ pub static DP54: Tableau = Tableau {
             &[0.0, q(40617522, 29380423), q(-110615467, 29380423), q(69997945, 29380423)],
         ],
     },
+    control: StepControl::DOPRI5,
     stiffness_pair: Some((5, 6)),
 };
 
@@ -524,6 +538,7 @@ pub static DP853: Tableau = Tableau {
             ],
         ],
     },
+    control: StepControl::DOP853,
     stiffness_pair: Some((11, 12)),
 };
 

@@ -570,6 +570,15 @@ fn cross_check(
             if ok(&im) { format!("did, in {} steps", im.stats.steps) } else { "failed too".into() }
         ),
         (_, false, _) => format!("The implicit method {} could not finish; only the explicit one did.", name(im_info.id)),
+        (_, _, Some(0)) => format!(
+            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} do not agree even to one digit on {}: treat those results as unsettled and tighten the tolerances.",
+            name(ex_id),
+            ex.stats.steps,
+            name(im_info.id),
+            im.stats.steps,
+            with_digits(tol.rtol, 1),
+            list(&agreement.iter().filter(|a| a.1 == 0).map(|a| a.0.clone()).collect::<Vec<_>>())
+        ),
         (_, _, Some(d)) => format!(
             "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} agree to at least {} digit{} on every result.",
             name(ex_id),
