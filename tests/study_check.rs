@@ -101,3 +101,17 @@ fn cross_check_says_plainly_when_methods_do_not_agree() {
     assert!(c.sentence.contains("do not agree even to one digit"), "{}", c.sentence);
     assert!(!c.sentence.contains("at least 0"), "{}", c.sentence);
 }
+
+/// The same oscillation at a tight tolerance: the methods agree on every
+/// value; its many equal troughs (one each period) must not count as a
+/// disagreement of their times.
+#[test]
+fn cross_check_ignores_which_cycle_a_repeated_peak_falls_on() {
+    let mut m = ratebook::sheet::compile("w = 3\nx'' = -w^2*x\nx(0) = 1\nx'(0) = 0\n").unwrap();
+    let (t0, y0) = (m.t0(), m.initial_state().to_vec());
+    let s = Settings { to: 60.0, ..Settings::default() };
+    let r = check(&mut m, t0, &y0, &s, "t", &Options { shown_digits: 4, cross_method: true }).unwrap();
+    let c = r.cross.expect("the cross-check ran");
+    assert!(c.least.is_some_and(|d| d >= 3), "{}", c.sentence);
+    assert!(c.sentence.contains("agree to at least"), "{}", c.sentence);
+}

@@ -550,7 +550,10 @@ fn cross_check(
     let (se, si) = (summary(problem, &ex), summary(problem, &im));
     let mut agreement = Vec::new();
     if ok(&ex) && ok(&im) {
-        for (k, _) in base {
+        // Times of peaks and troughs are left out: when a run has several
+        // equal peaks (an undamped oscillation), two methods may each find
+        // theirs on a different cycle, which says nothing about accuracy.
+        for (k, _) in base.iter().filter(|(k, _)| !matches!(k.kind, Kind::PeakTime | Kind::TroughTime)) {
             let a = se.iter().find(|(x, _)| x == k).map(|p| p.1);
             let b = si.iter().find(|(x, _)| x == k).map(|p| p.1);
             if let (Some(a), Some(b)) = (a, b) {
@@ -580,7 +583,7 @@ fn cross_check(
             list(&agreement.iter().filter(|a| a.1 == 0).map(|a| a.0.clone()).collect::<Vec<_>>())
         ),
         (_, _, Some(d)) => format!(
-            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} agree to at least {} digit{} on every result.",
+            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} agree to at least {} digit{} on every value and event time.",
             name(ex_id),
             ex.stats.steps,
             name(im_info.id),
