@@ -53,21 +53,28 @@ pub enum StabilityFunction {
     },
 }
 
+/// Coefficients `γ_k = b·A^(k-1)·1` of an explicit Runge–Kutta method's
+/// stability polynomial `R(z) = 1 + Σ_k γ_k z^k`, for `k = 1..=stages`, with
+/// trailing zeros dropped. Rows of `a` may be short (missing entries are 0).
+pub fn increments(a: &[&[f64]], b: &[f64]) -> Vec<f64> {
+    let s = b.len();
+    let mut v = vec![1.0; s];
+    let mut g = Vec::with_capacity(s);
+    for _ in 0..s {
+        g.push(b.iter().zip(&v).map(|(b, x)| b * x).sum());
+        v = (0..s).map(|i| a.get(i).map_or(0.0, |row| row.iter().zip(&v).map(|(a, x)| a * x).sum())).collect();
+    }
+    while g.last() == Some(&0.0) {
+        g.pop();
+    }
+    g
+}
+
 impl StabilityFunction {
     /// The stability polynomial of an explicit Runge–Kutta method with rows
     /// `a[i] = a_i0 … a_i(i−1)` and weights `b`: coefficients `bᵀA^(k−1)𝟙`.
     pub fn explicit(a: &[&[f64]], b: &[f64]) -> Self {
-        let s = b.len();
-        let mut v = vec![1.0; s];
-        let mut c = vec![1.0];
-        for _ in 0..s {
-            c.push(b.iter().zip(&v).map(|(b, x)| b * x).sum());
-            v = (0..s).map(|i| a.get(i).map_or(0.0, |row| row.iter().zip(&v).map(|(a, x)| a * x).sum())).collect();
-        }
-        while c.len() > 1 && c.last() == Some(&0.0) {
-            c.pop();
-        }
-        StabilityFunction::Polynomial(c)
+        Self::from_increments(&increments(a, b))
     }
 
     /// The polynomial `R(z) = 1 + Σ_k g[k-1] z^k` from the coefficients `g`

@@ -119,21 +119,7 @@ impl Tableau {
     /// Coefficients `γ_k = b·A^(k-1)·1` of the stability polynomial
     /// `R(z) = 1 + Σ_k γ_k z^k`, for `k = 1..=stages`.
     pub fn stability_polynomial(&self) -> Vec<f64> {
-        let s = self.stages();
-        let mut v = vec![1.0; s];
-        let mut out = Vec::with_capacity(s);
-        for _ in 0..s {
-            out.push(self.b.iter().zip(&v).map(|(b, x)| b * x).sum());
-            let mut w = vec![0.0; s];
-            for (i, wi) in w.iter_mut().enumerate() {
-                *wi = self.a[i].iter().zip(&v).map(|(a, x)| a * x).sum();
-            }
-            v = w;
-        }
-        while out.last() == Some(&0.0) {
-            out.pop();
-        }
-        out
+        super::stability::increments(self.a, self.b)
     }
 }
 
