@@ -184,7 +184,9 @@ fn sign(v: f64) -> bool {
 }
 
 fn inf_norm(y: &[f64]) -> f64 {
-    y.iter().fold(0.0, |m: f64, v| m.max(v.abs()))
+    // `m.max(|v|)` by comparison (a NaN is skipped as `f64::max` does), without
+    // the call to `fmax` that `f64::max` becomes on wasm32: this runs every step.
+    y.iter().fold(0.0, |m: f64, v| if v.abs() > m { v.abs() } else { m })
 }
 
 struct Driver<'a> {
@@ -474,7 +476,8 @@ impl<'a> Driver<'a> {
                     tn
                 }
             } else {
-                let tn = self.t + self.dir * h_abs.min(h_max);
+                // `h_abs.min(h_max)` by comparison (no `fmin` call on wasm32).
+                let tn = self.t + self.dir * if h_abs < h_max { h_abs } else { h_max };
                 if (tn - to) * self.dir >= 0.0 {
                     to
                 } else {
