@@ -61,7 +61,8 @@ pub struct ExplicitStepper<const N: usize = 0> {
     /// Stage arguments of the stiffness pair.
     g_pair: [Vec<f64>; 2],
     stage: Vec<f64>,
-    /// Scratch sums of [`combine`] (two, for the blended error estimate).
+    /// Scratch sums of [`combine`] (two, for the blended error estimate)
+    /// when the size is not fixed (`N = 0`).
     acc: [Vec<f64>; 2],
     /// Start, end and step of the last successful attempt.
     y0: Vec<f64>,
@@ -211,7 +212,11 @@ impl<const N: usize> ExplicitStepper<N> {
     fn eval_stage(&mut self, problem: &mut dyn Problem, i: usize, stats: &mut Stats) -> Result<(), StepFault> {
         let (h, dim) = (self.h, self.n());
         let (done, rest) = self.k.split_at_mut(i * dim);
-        let acc = &mut self.acc[0][..dim];
+        // With the size fixed the sums live in registers (a local array),
+        // not in memory that a bounds check in the loop would have to keep
+        // up to date.
+        let mut fixed = [0.0; N];
+        let acc: &mut [f64] = if N > 0 { &mut fixed } else { &mut self.acc[0][..dim] };
         combine(acc, done, &self.plan.rows[i]);
         let stage = &mut self.stage[..dim];
         for ((x, y), a) in stage.iter_mut().zip(&self.y0[..dim]).zip(&*acc) {
@@ -247,7 +252,8 @@ impl<const N: usize> ExplicitStepper<N> {
             return Some(0.0);
         }
         let [a5, a3] = &mut self.acc;
-        let (a5, a3) = (&mut a5[..dim], &mut a3[..dim]);
+        let (mut f5, mut f3) = ([0.0; N], [0.0; N]);
+        let (a5, a3): (&mut [f64], &mut [f64]) = if N > 0 { (&mut f5, &mut f3) } else { (&mut a5[..dim], &mut a3[..dim]) };
         combine(a5, &self.k, &self.plan.e);
         if blended {
             combine(a3, &self.k, &self.plan.e3);
@@ -328,7 +334,8 @@ impl<const N: usize> Stepper for ExplicitStepper<N> {
             self.eval_stage(problem, i, stats)?;
         }
         // y_new = y + h Σ b_i k_i
-        let acc = &mut self.acc[0][..dim];
+        let mut fixed = [0.0; N];
+        let acc: &mut [f64] = if N > 0 { &mut fixed } else { &mut self.acc[0][..dim] };
         combine(acc, &self.k, &self.plan.b);
         let y1 = &mut self.y1[..dim];
         for ((x, y), a) in y1.iter_mut().zip(&self.y0[..dim]).zip(&*acc) {
