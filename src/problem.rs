@@ -84,6 +84,16 @@ pub trait Problem {
     /// Evaluate the helpers at `(t, y)` into `out` (`helper_names().len()` values).
     fn helpers(&mut self, _t: f64, _y: &[f64], _out: &mut [f64]) {}
 
+    /// The helpers' rates of change along a trajectory through `(t, y)` whose
+    /// states change at the rates `dy`: `out[m] = ∂h_m/∂t + Σ_j ∂h_m/∂y_j·dy[j]`
+    /// (`helper_names().len()` values). Peaks and troughs of the helpers are
+    /// located on these, like events. Returns `false` when the model has no
+    /// exact derivatives of its helpers; the driver then searches the helpers'
+    /// values instead.
+    fn helper_rates(&mut self, _t: f64, _y: &[f64], _dy: &[f64], _out: &mut [f64]) -> bool {
+        false
+    }
+
     /// The model's events, in order.
     fn events(&self) -> &[EventSpec] {
         &[]

@@ -92,3 +92,37 @@ fn fourth_order_beam_mode_against_its_first_order_form() {
     let rb = solve(&mut b, 0.0, &yb, &settings).unwrap();
     assert_eq!(ra.states, rb.states);
 }
+
+#[test]
+fn helper_rates_are_the_helpers_derivatives_along_a_direction() {
+    // Common practice, no source: a central difference of h(t + s, y + s·dy)
+    // in s approximates ∂h/∂t + ∇h·dy to O(s²).
+    let text = "k = 0.7\ndx/dt = -k*x + y\ndy/dt = sin(t) - y\nx(0) = 1\ny(0) = 0\n\
+        flow = k*x^2 + exp(-y)\nload = flow*cos(2*t) + sqrt(1 + x*x)\nratio = load/(2 + y*y)\n";
+    let mut m = compile(text).unwrap();
+    let nh = m.helper_names().len();
+    assert_eq!(nh, 3);
+    let (t, y, dy) = (0.8, [1.3, -0.4], [0.25, -1.5]);
+    // As compiled, then with k live and moved (the gradient tape follows it).
+    for k_value in [None, Some(1.9)] {
+        if let Some(v) = k_value {
+            m.set_live(&["k"]);
+            // Build the gradient tape before the move, so the move must update it.
+            assert!(m.helper_rates(t, &y, &dy, &mut vec![0.0; nh]));
+            assert!(m.set_param("k", v));
+        }
+        let mut rates = vec![0.0; nh];
+        assert!(m.helper_rates(t, &y, &dy, &mut rates));
+        let mut at = |s: f64| {
+            let mut h = vec![0.0; nh];
+            m.helpers(t + s, &[y[0] + s * dy[0], y[1] + s * dy[1]], &mut h);
+            h
+        };
+        let s = 1e-5;
+        let (hp, hm) = (at(s), at(-s));
+        for k in 0..nh {
+            let fd = (hp[k] - hm[k]) / (2.0 * s);
+            assert!((rates[k] - fd).abs() < 1e-8 * (1.0 + fd.abs()), "k = {k_value:?}, helper {k}: {} vs {fd}", rates[k]);
+        }
+    }
+}

@@ -113,6 +113,9 @@ impl Problem for Ticking<'_, '_> {
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
         self.inner.helpers(t, y, out)
     }
+    fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
+        self.inner.helper_rates(t, y, dy, out)
+    }
     fn events(&self) -> &[crate::problem::EventSpec] {
         self.inner.events()
     }

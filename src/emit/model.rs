@@ -330,6 +330,10 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
         self.scratch = scratch;
     }
 
+    fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
+        self.model.borrow_mut().helper_rates(t, y, dy, out)
+    }
+
     fn events(&self) -> &[EventSpec] {
         self.model.borrow().events()
     }

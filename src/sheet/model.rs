@@ -40,6 +40,9 @@ pub struct Model {
     const_prog: Program,
     jac: Option<Program>,
     dfdt: Option<Program>,
+    /// Gradients of the helpers, row `m` = `[∂h_m/∂y…, ∂h_m/∂t]`.
+    helper_grad: Option<Program>,
+    grad_buf: Vec<f64>,
     t0: f64,
     y0: Vec<f64>,
     params: Vec<Param>,
@@ -111,6 +114,8 @@ impl Model {
             const_prog,
             jac: None,
             dfdt: None,
+            helper_grad: None,
+            grad_buf: Vec::new(),
             t0: 0.0,
             y0: vec![0.0; dim],
             params,
@@ -221,7 +226,7 @@ impl Model {
                 for p in [&mut self.rhs, &mut self.all, &mut self.event_prog, &mut self.switch_prog, &mut self.const_prog] {
                     p.set_live(k, value);
                 }
-                for p in [&mut self.jac, &mut self.dfdt].into_iter().flatten() {
+                for p in [&mut self.jac, &mut self.dfdt, &mut self.helper_grad].into_iter().flatten() {
                     p.set_live(k, value);
                 }
                 if let Some(l) = self.low.live.get_mut(k) {
@@ -285,6 +290,20 @@ fn build_jacobian(low: &mut Lowered) -> Program {
     low.graph.schedule(n, &low.live, &roots)
 }
 
+/// The helpers' gradients: `n + 1` outputs per helper, `∂h_m/∂y_j` then `∂h_m/∂t`.
+fn build_helper_gradients(low: &mut Lowered) -> Program {
+    let n = low.rates.len();
+    let helpers = low.helpers.clone();
+    let mut roots = vec![0; helpers.len() * (n + 1)];
+    for j in 0..=n {
+        let var = if j < n { low.graph.state(j) } else { low.graph.time() };
+        for (m, d) in low.graph.derivatives(&helpers, var).into_iter().enumerate() {
+            roots[m * (n + 1) + j] = d;
+        }
+    }
+    low.graph.schedule(n, &low.live, &roots)
+}
+
 fn build_dfdt(low: &mut Lowered) -> Program {
     let var = low.graph.time();
     let d = low.graph.derivatives(&low.rates, var);
@@ -331,6 +350,17 @@ impl Problem for Model {
     fn helpers(&mut self, t: f64, y: &[f64], out: &mut [f64]) {
         let dim = self.state_names.len();
         self.all.eval_from(t, y, dim, out);
+    }
+
+    fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
+        let n = self.state_names.len();
+        let grad = self.helper_grad.get_or_insert_with(|| build_helper_gradients(&mut self.low));
+        self.grad_buf.resize(out.len() * (n + 1), 0.0);
+        grad.eval(t, y, &mut self.grad_buf);
+        for (o, row) in out.iter_mut().zip(self.grad_buf.chunks_exact(n + 1)) {
+            *o = row[n] + row[..n].iter().zip(dy).map(|(g, d)| g * d).sum::<f64>();
+        }
+        true
     }
 
     fn events(&self) -> &[EventSpec] {

@@ -184,7 +184,9 @@ fn sign(v: f64) -> bool {
 }
 
 fn inf_norm(y: &[f64]) -> f64 {
-    y.iter().fold(0.0, |m: f64, v| m.max(v.abs()))
+    // `m.max(|v|)` by comparison (a NaN is skipped as `f64::max` does), without
+    // the call to `fmax` that `f64::max` becomes on wasm32: this runs every step.
+    y.iter().fold(0.0, |m: f64, v| if v.abs() > m { v.abs() } else { m })
 }
 
 struct Driver<'a> {
@@ -232,6 +234,9 @@ struct Driver<'a> {
     dip: bool,
     // scratch
     helpers_buf: Vec<f64>,
+    /// Scratch of the peak search: sample times and rates.
+    peak_times: Vec<f64>,
+    peak_rates: Vec<f64>,
 }
 
 impl<'a> Driver<'a> {
@@ -280,6 +285,8 @@ impl<'a> Driver<'a> {
             norms: Vec::new(),
             dip: false,
             helpers_buf: vec![0.0; n_helpers],
+            peak_times: Vec::new(),
+            peak_rates: Vec::new(),
         };
         d.start();
         d
@@ -474,7 +481,8 @@ impl<'a> Driver<'a> {
                     tn
                 }
             } else {
-                let tn = self.t + self.dir * h_abs.min(h_max);
+                // `h_abs.min(h_max)` by comparison (no `fmin` call on wasm32).
+                let tn = self.t + self.dir * if h_abs < h_max { h_abs } else { h_max };
                 if (tn - to) * self.dir >= 0.0 {
                     to
                 } else {
@@ -1034,71 +1042,111 @@ impl<'a> Driver<'a> {
         stop
     }
 
-    /// Peaks and troughs of the states (roots of the dense output's slope) and
-    /// of the helpers (golden-section search between samples) in `(t, t_end]`.
+    /// Peaks and troughs in `(t, t_end]`: of the states at the roots of the
+    /// dense output's slope, and of the helpers at the roots of their rates
+    /// along the dense output ([`Problem::helper_rates`]), or by
+    /// golden-section search between samples when the model has no helper
+    /// rates.
     fn peaks_in_step(&mut self, h: f64, t_end: f64, t_next: f64, y_new: &[f64]) {
-        let n = self.dim;
-        let nh = self.n_helpers;
-        let mut times = vec![self.t];
-        for tau in self.sample_times(h, t_next) {
+        let (n, nh) = (self.dim, self.n_helpers);
+        let w = n + nh;
+        let mut times = std::mem::take(&mut self.peak_times);
+        times.clear();
+        times.push(self.t);
+        for j in 1..SAMPLES {
+            let tau = self.t + h * j as f64 / SAMPLES as f64;
             if (tau - t_end) * self.dir < 0.0 {
                 times.push(tau);
             }
         }
         times.push(t_end);
-        let mut slopes = Vec::with_capacity(times.len());
-        let mut vals = Vec::with_capacity(times.len());
+        // Row k: the states' slopes at times[k], then (with helper rates) the helpers' rates.
+        let mut rates = std::mem::take(&mut self.peak_rates);
+        rates.clear();
+        rates.resize(times.len() * w, 0.0);
         let mut ys = vec![0.0; n];
-        for &tau in &times {
-            let mut sl = vec![0.0; n];
-            self.stepper.dense_slope((tau - self.t) / h, h, &mut sl);
-            slopes.push(sl);
-            self.dense_at(tau, h, t_next, y_new, &mut ys);
-            let mut row = ys.clone();
-            if nh > 0 {
-                self.problem.helpers(tau, &ys, &mut self.helpers_buf);
-                row.extend_from_slice(&self.helpers_buf);
+        let mut has_rates = nh > 0;
+        for (k, &tau) in times.iter().enumerate() {
+            let row = &mut rates[k * w..(k + 1) * w];
+            self.stepper.dense_slope((tau - self.t) / h, h, &mut row[..n]);
+            if has_rates {
+                self.dense_at(tau, h, t_next, y_new, &mut ys);
+                let (dy, hr) = row.split_at_mut(n);
+                has_rates = self.problem.helper_rates(tau, &ys, dy, hr);
             }
-            vals.push(row);
         }
         // End value of every quantity.
-        if let Some(last) = vals.last().cloned() {
-            for (p, v) in self.peaks.iter_mut().zip(&last) {
+        self.dense_at(t_end, h, t_next, y_new, &mut ys);
+        for (p, v) in self.peaks.iter_mut().zip(&ys) {
+            p.see(*v, t_end);
+        }
+        if nh > 0 {
+            self.problem.helpers(t_end, &ys, &mut self.helpers_buf);
+            for (p, v) in self.peaks[n..].iter_mut().zip(&self.helpers_buf) {
                 p.see(*v, t_end);
             }
         }
-        let slope_fn = |d: &mut Self, tt: f64, _y: &[f64], out: &mut [f64]| d.stepper.dense_slope((tt - d.t) / h, h, out);
-        for i in 0..n {
+        // The rates of states and (when the model has them) helpers on the dense output.
+        let slope_fn = |d: &mut Self, tt: f64, y: &[f64], out: &mut [f64]| {
+            d.stepper.dense_slope((tt - d.t) / h, h, &mut out[..n]);
+            if out.len() > n {
+                let (dy, hr) = out.split_at_mut(n);
+                d.problem.helper_rates(tt, y, dy, hr);
+            }
+        };
+        let located = if has_rates { w } else { n };
+        let mut hv = vec![0.0; nh];
+        for i in 0..located {
             for j in 1..times.len() {
-                let (a, b) = (slopes[j - 1][i], slopes[j][i]);
+                let (a, b) = (rates[(j - 1) * w + i], rates[j * w + i]);
                 if a.is_finite() && b.is_finite() && a != 0.0 && b != 0.0 && sign(a) != sign(b) {
-                    let (ta, tb) = self.root(slope_fn, i, n, times[j - 1], times[j], a, b, h, t_next, y_new);
+                    let (ta, tb) = self.root(slope_fn, i, if i < n { n } else { w }, times[j - 1], times[j], a, b, h, t_next, y_new);
                     let tm = 0.5 * (ta + tb);
                     self.dense_at(tm, h, t_next, y_new, &mut ys);
-                    let v = ys[i];
+                    let v = if i < n {
+                        ys[i]
+                    } else {
+                        self.problem.helpers(tm, &ys, &mut hv);
+                        hv[i - n]
+                    };
                     self.peaks[i].see(v, tm);
                 }
             }
         }
+        if nh > 0 && !has_rates {
+            self.helper_peaks_by_values(&times, h, t_next, y_new);
+        }
+        self.peak_times = times;
+        self.peak_rates = rates;
+    }
+
+    /// Helper peaks without helper rates: golden-section search around each
+    /// sample that is larger (smaller) than its neighbours.
+    fn helper_peaks_by_values(&mut self, times: &[f64], h: f64, t_next: f64, y_new: &[f64]) {
+        let (n, nh) = (self.dim, self.n_helpers);
+        let mut ys = vec![0.0; n];
+        let mut vals = vec![0.0; times.len() * nh];
+        for (k, &tau) in times.iter().enumerate() {
+            self.dense_at(tau, h, t_next, y_new, &mut ys);
+            self.problem.helpers(tau, &ys, &mut vals[k * nh..(k + 1) * nh]);
+        }
+        let mut hv = vec![0.0; nh];
         for m in 0..nh {
-            let q = n + m;
             for j in 1..times.len().saturating_sub(1) {
-                let (a, b, c) = (vals[j - 1][q], vals[j][q], vals[j + 1][q]);
+                let (a, b, c) = (vals[(j - 1) * nh + m], vals[j * nh + m], vals[(j + 1) * nh + m]);
                 for s in [1.0, -1.0] {
                     if s * b > s * a && s * b >= s * c {
-                        let mut yv = vec![0.0; n];
-                        let mut hv = vec![0.0; nh];
                         let (ta, tc) = (times[j - 1], times[j + 1]);
                         let (tm, v) = golden_max(
                             |tau| {
-                                self.dense_at(tau, h, t_next, y_new, &mut yv);
-                                self.problem.helpers(tau, &yv, &mut hv);
+                                self.dense_at(tau, h, t_next, y_new, &mut ys);
+                                self.problem.helpers(tau, &ys, &mut hv);
                                 s * hv[m]
                             },
                             ta.min(tc),
                             ta.max(tc),
                         );
-                        self.peaks[q].see(s * v, tm);
+                        self.peaks[n + m].see(s * v, tm);
                     }
                 }
             }

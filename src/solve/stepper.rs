@@ -35,7 +35,10 @@ impl Tolerance {
     /// The error weight of one component: `atol + rtol·max(|y|, |y_new|)`.
     #[inline]
     pub fn weight(&self, y: f64, y_new: f64) -> f64 {
-        self.atol + self.rtol * y.abs().max(y_new.abs())
+        // `a.max(b)` by comparison: the same value (a NaN is ignored), without
+        // the call to `fmax` that `f64::max` becomes on wasm32.
+        let (a, b) = (y.abs(), y_new.abs());
+        self.atol + self.rtol * if a > b || b.is_nan() { a } else { b }
     }
 }
 
