@@ -372,6 +372,22 @@ impl RadauTableau {
     }
 }
 
+/// The three stage blocks of `n` entries of `v` (`3n` long).
+#[inline]
+fn blocks(v: &[f64], n: usize) -> [&[f64]; 3] {
+    let (a, rest) = v.split_at(n);
+    let (b, c) = rest.split_at(n);
+    [a, b, &c[..n]]
+}
+
+/// [`blocks`], mutable.
+#[inline]
+fn blocks_mut(v: &mut [f64], n: usize) -> [&mut [f64]; 3] {
+    let (a, rest) = v.split_at_mut(n);
+    let (b, c) = rest.split_at_mut(n);
+    [a, b, &mut c[..n]]
+}
+
 /// The stepper of [`RADAU5`].
 #[derive(Debug)]
 pub struct Radau {
@@ -521,10 +537,8 @@ impl Radau {
             *s = 1.0 / tol.weight(yq, yq);
         }
         {
-            let (z0, z12) = self.z.split_at(n);
-            let (z1, z2) = z12.split_at(n);
-            let (w0, w12) = self.w.split_at_mut(n);
-            let (w1, w2) = w12.split_at_mut(n);
+            let [z0, z1, z2] = blocks(&self.z, n);
+            let [w0, w1, w2] = blocks_mut(&mut self.w, n);
             for q in 0..n {
                 let zq = [z0[q], z1[q], z2[q]];
                 w0[q] = ti[0][0] * zq[0] + ti[0][1] * zq[1] + ti[0][2] * zq[2];
@@ -540,15 +554,14 @@ impl Radau {
                 rates(problem, t + self.c[i] * h, &self.arg, fi, stats)?;
             }
             {
-                let (f0, f12) = self.fz.split_at(n);
-                let (f1, f2) = f12.split_at(n);
-                let (w0, w12) = self.w.split_at(n);
-                let (w1, w2) = w12.split_at(n);
+                let [f0, f1, f2] = blocks(&self.fz, n);
+                let [w0, w1, w2] = blocks(&self.w, n);
+                let (dr, dc) = (&mut self.dw_real[..n], &mut self.dw_complex[..n]);
                 for q in 0..n {
                     let f = [f0[q], f1[q], f2[q]];
                     let tf = |i: usize| ti[i][0] * f[0] + ti[i][1] * f[1] + ti[i][2] * f[2];
-                    self.dw_real[q] = reuse * (tf(0) - gamma * w0[q]);
-                    self.dw_complex[q] = Complex::new(reuse * (tf(1) - (alpha * w1[q] - beta * w2[q])), reuse * (tf(2) - (beta * w1[q] + alpha * w2[q])));
+                    dr[q] = reuse * (tf(0) - gamma * w0[q]);
+                    dc[q] = Complex::new(reuse * (tf(1) - (alpha * w1[q] - beta * w2[q])), reuse * (tf(2) - (beta * w1[q] + alpha * w2[q])));
                 }
             }
             if self.real.solve(&mut self.dw_real).is_err() || self.complex.solve(&mut self.dw_complex).is_err() {
@@ -556,12 +569,11 @@ impl Radau {
             }
             let mut sum = 0.0;
             {
-                let (z0, z12) = self.z.split_at_mut(n);
-                let (z1, z2) = z12.split_at_mut(n);
-                let (w0, w12) = self.w.split_at_mut(n);
-                let (w1, w2) = w12.split_at_mut(n);
+                let [z0, z1, z2] = blocks_mut(&mut self.z, n);
+                let [w0, w1, w2] = blocks_mut(&mut self.w, n);
+                let (dr, dc, scale) = (&self.dw_real[..n], &self.dw_complex[..n], &self.inv_scale[..n]);
                 for q in 0..n {
-                    let dw = [self.dw_real[q], self.dw_complex[q].re, self.dw_complex[q].im];
+                    let dw = [dr[q], dc[q].re, dc[q].im];
                     w0[q] += dw[0];
                     w1[q] += dw[1];
                     w2[q] += dw[2];
@@ -569,9 +581,8 @@ impl Radau {
                     z0[q] += dz[0];
                     z1[q] += dz[1];
                     z2[q] += dz[2];
-                    let s = self.inv_scale[q];
                     for d in dz {
-                        sum += (d * s).powi(2);
+                        sum += (d * scale[q]).powi(2);
                     }
                 }
             }
@@ -596,12 +607,14 @@ impl Radau {
             return;
         }
         let ratio = h / self.accepted.1;
-        for i in 0..3 {
+        let l = [0, 1, 2].map(|i| {
             let theta = 1.0 + self.c[i] * ratio;
-            let l = [self.basis(0, theta), self.basis(1, theta), self.basis(2, theta)];
-            for q in 0..n {
-                let zp = &self.accepted.0;
-                self.z[i * n + q] = l[0] * zp[q] + l[1] * zp[n + q] + l[2] * zp[2 * n + q] - zp[2 * n + q];
+            [self.basis(0, theta), self.basis(1, theta), self.basis(2, theta)]
+        });
+        let [p0, p1, p2] = blocks(&self.accepted.0, n);
+        for (zi, l) in self.z.chunks_exact_mut(n).zip(l) {
+            for (((zq, a), b), c) in zi.iter_mut().zip(p0).zip(p1).zip(p2) {
+                *zq = l[0] * a + l[1] * b + l[2] * c - c;
             }
         }
     }
@@ -613,9 +626,10 @@ impl Radau {
     /// real block `γ/h_f·I - J = (I - γ0 h_f J)/(γ0 h_f)`, whose `h_f` may lag
     /// a little, so the bracket is divided by `h_f`.
     fn estimate(&mut self, f: &[f64], h: f64, n: usize) -> Result<(), StepFault> {
-        for q in 0..n {
-            let ze: f64 = (0..3).map(|i| self.e[i] * self.z[i * n + q]).sum();
-            self.err[q] = (h * f[q] + ze) / self.h_factored;
+        let [z0, z1, z2] = blocks(&self.z, n);
+        let e = self.e;
+        for ((err, &fq), q) in self.err.iter_mut().zip(f).zip(0..n) {
+            *err = (h * fq + (e[0] * z0[q] + e[1] * z1[q] + e[2] * z2[q])) / self.h_factored;
         }
         self.real.solve(&mut self.err)
     }

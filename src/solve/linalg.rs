@@ -123,7 +123,8 @@ impl Derivatives {
             if step == 7 {
                 break;
             }
-            let top = w.iter().fold(0.0, |m: f64, x| m.max(x.abs()));
+            // A plain comparison: `f64::max` is a library call in wasm.
+            let top = w.iter().fold(0.0, |m: f64, x| if x.abs() > m { x.abs() } else { m });
             if top == 0.0 || !top.is_finite() {
                 return if top == 0.0 { 0.0 } else { f64::INFINITY };
             }
@@ -272,7 +273,9 @@ impl<T: Entry> Factored<T> {
             if !(modulus > 0.0 && modulus.is_finite()) {
                 return Err(StepFault::Singular);
             }
-            scale = scale.max(modulus);
+            if modulus > scale {
+                scale = modulus;
+            }
             let inv = T::ONE / pivot;
             self.inv_diag[k] = inv;
             let (upper, lower) = a.split_at_mut((k + 1) * n);
