@@ -348,6 +348,16 @@ impl<'a> Driver<'a> {
     }
 
     fn start(&mut self) {
+        // Room for the output up front, so that a short run does not grow
+        // its columns push by push: every `at` point, or else up to 256
+        // steps within a budget of 4096 stored values.
+        let columns = self.dim + self.n_helpers + 1;
+        let points = match &self.settings.at {
+            Some(at) => at.len(),
+            None => (4096 / columns).clamp(16, 256).min(self.settings.max_output),
+        };
+        self.out_t.reserve(points);
+        self.out_y.iter_mut().chain(self.out_h.iter_mut()).for_each(|col| col.reserve(points));
         let (t, y) = (self.t, self.y.clone());
         match &self.settings.at {
             None => self.record(t, &y),
@@ -1163,12 +1173,12 @@ impl<'a> Driver<'a> {
                 self.decimate();
             }
         }
-        let names: Vec<String> = self.problem.state_names().iter().chain(self.problem.helper_names()).cloned().collect();
+        let names = self.problem.state_names().iter().chain(self.problem.helper_names());
         let extrema = self
             .peaks
             .iter()
             .zip(names)
-            .map(|(p, name)| Extremum { name, max: p.max, t_max: p.t_max, min: p.min, t_min: p.t_min })
+            .map(|(p, name)| Extremum { name: name.clone(), max: p.max, t_max: p.t_max, min: p.min, t_min: p.t_min })
             .collect();
         Run {
             t: self.out_t,
