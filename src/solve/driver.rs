@@ -602,7 +602,8 @@ impl<'a> Driver<'a> {
                 }
                 None => {
                     self.t = t_next;
-                    self.y.copy_from_slice(&y_new);
+                    // The accepted state: y_new is overwritten by the next attempt.
+                    std::mem::swap(&mut self.y, &mut y_new);
                 }
             }
             let norm = inf_norm(&self.y);
