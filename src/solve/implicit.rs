@@ -376,6 +376,8 @@ impl RadauTableau {
 #[derive(Debug)]
 pub struct Radau {
     c: [f64; 3],
+    /// `1 / (c_k (c_k - c_a)(c_k - c_b))`, the Lagrange basis' normalisation.
+    basis_scale: [f64; 3],
     e: [f64; 3],
     t: [[f64; 3]; 3],
     t_inv: [[f64; 3]; 3],
@@ -413,6 +415,8 @@ pub struct Radau {
     err: Vec<f64>,
     last_rate: f64,
     last_iters: usize,
+    /// `1 / (atol + rtol·|y_q|)`, the Newton norm's weights at the step's start.
+    inv_scale: Vec<f64>,
     /// `(y0, z, h)` of the last successful attempt; `z` holds the three
     /// stage increments one after another.
     trial: (Vec<f64>, Vec<f64>, f64),
@@ -427,8 +431,14 @@ impl Radau {
     pub fn new(n: usize) -> Self {
         let t = &RADAU5;
         let z = |k: usize| vec![0.0; k];
+        let c = t.c.map(Sqrt6Number::value);
+        let basis_scale = [0, 1, 2].map(|k| {
+            let (a, b) = (c[(k + 1) % 3], c[(k + 2) % 3]);
+            1.0 / (c[k] * (c[k] - a) * (c[k] - b))
+        });
         Radau {
-            c: t.c.map(Sqrt6Number::value),
+            c,
+            basis_scale,
             e: t.e.map(Sqrt6Number::value),
             t: t.t,
             t_inv: t.t_inv,
@@ -453,6 +463,7 @@ impl Radau {
             err: z(n),
             last_rate: 0.0,
             last_iters: 0,
+            inv_scale: z(n),
             trial: (z(n), z(3 * n), 0.0),
             accepted: (z(3 * n), 0.0),
             can_extrapolate: false,
@@ -462,14 +473,14 @@ impl Radau {
     /// `ℓ_k(θ)`: the Lagrange basis on the nodes `0, c1, c2, c3` with `ℓ_k(0) = 0`.
     fn basis(&self, k: usize, theta: f64) -> f64 {
         let [a, b] = self.other_nodes(k);
-        theta * (theta - a) * (theta - b) / (self.c[k] * (self.c[k] - a) * (self.c[k] - b))
+        theta * (theta - a) * (theta - b) * self.basis_scale[k]
     }
 
     /// `dℓ_k/dθ`.
     fn basis_slope(&self, k: usize, theta: f64) -> f64 {
         let [a, b] = self.other_nodes(k);
         let d = (theta - a) * (theta - b) + theta * (theta - b) + theta * (theta - a);
-        d / (self.c[k] * (self.c[k] - a) * (self.c[k] - b))
+        d * self.basis_scale[k]
     }
 
     fn other_nodes(&self, k: usize) -> [f64; 2] {
@@ -497,47 +508,71 @@ impl Radau {
     /// `(h_f/h)(Λ/h_f ⊗ I - I⊗J) Δw = (T⁻¹⊗I) F(z) - (Λ/h ⊗ I) w`, one real
     /// and one complex `n × n` block. (Scaling by `h_f/h` keeps the reused
     /// matrix exact on the non-stiff components, where `I - h_f A⊗J ≈ I`.)
-    /// The convergence test measures `Δz`. Returns whether it converged;
-    /// non-finite rates at a stage are a fault.
+    /// The convergence test measures `Δz`, in the weights at the step's start.
+    /// Returns whether it converged; non-finite rates at a stage are a fault.
     fn newton(&mut self, problem: &mut dyn Problem, t: f64, y: &[f64], h: f64, tol: &Tolerance, stats: &mut Stats) -> Result<bool, StepFault> {
         let n = y.len();
         let kappa = newton_kappa(tol);
         let mut conv = Contraction::default();
-        let (tm, ti) = (&self.t, &self.t_inv);
+        let (tm, ti) = (self.t, self.t_inv);
         let [gamma, alpha, beta] = self.lambda.map(|v| v / h);
         let reuse = h / self.h_factored;
-        for q in 0..n {
-            let zq = [self.z[q], self.z[n + q], self.z[2 * n + q]];
-            for i in 0..3 {
-                self.w[i * n + q] = ti[i][0] * zq[0] + ti[i][1] * zq[1] + ti[i][2] * zq[2];
+        for (s, &yq) in self.inv_scale.iter_mut().zip(y) {
+            *s = 1.0 / tol.weight(yq, yq);
+        }
+        {
+            let (z0, z12) = self.z.split_at(n);
+            let (z1, z2) = z12.split_at(n);
+            let (w0, w12) = self.w.split_at_mut(n);
+            let (w1, w2) = w12.split_at_mut(n);
+            for q in 0..n {
+                let zq = [z0[q], z1[q], z2[q]];
+                w0[q] = ti[0][0] * zq[0] + ti[0][1] * zq[1] + ti[0][2] * zq[2];
+                w1[q] = ti[1][0] * zq[0] + ti[1][1] * zq[1] + ti[1][2] * zq[2];
+                w2[q] = ti[2][0] * zq[0] + ti[2][1] * zq[1] + ti[2][2] * zq[2];
             }
         }
         for k in 0..NEWTON_MAX_ITER {
-            for i in 0..3 {
-                for q in 0..n {
-                    self.arg[q] = y[q] + self.z[i * n + q];
+            for (i, (zi, fi)) in self.z.chunks_exact(n).zip(self.fz.chunks_exact_mut(n)).enumerate() {
+                for ((a, &yq), &zq) in self.arg.iter_mut().zip(y).zip(zi) {
+                    *a = yq + zq;
                 }
-                rates(problem, t + self.c[i] * h, &self.arg, &mut self.fz[i * n..(i + 1) * n], stats)?;
+                rates(problem, t + self.c[i] * h, &self.arg, fi, stats)?;
             }
-            for q in 0..n {
-                let f = [self.fz[q], self.fz[n + q], self.fz[2 * n + q]];
-                let w = [self.w[q], self.w[n + q], self.w[2 * n + q]];
-                let tf = |i: usize| ti[i][0] * f[0] + ti[i][1] * f[1] + ti[i][2] * f[2];
-                self.dw_real[q] = reuse * (tf(0) - gamma * w[0]);
-                self.dw_complex[q] = Complex::new(tf(1) - (alpha * w[1] - beta * w[2]), tf(2) - (beta * w[1] + alpha * w[2])) * reuse;
+            {
+                let (f0, f12) = self.fz.split_at(n);
+                let (f1, f2) = f12.split_at(n);
+                let (w0, w12) = self.w.split_at(n);
+                let (w1, w2) = w12.split_at(n);
+                for q in 0..n {
+                    let f = [f0[q], f1[q], f2[q]];
+                    let tf = |i: usize| ti[i][0] * f[0] + ti[i][1] * f[1] + ti[i][2] * f[2];
+                    self.dw_real[q] = reuse * (tf(0) - gamma * w0[q]);
+                    self.dw_complex[q] = Complex::new(reuse * (tf(1) - (alpha * w1[q] - beta * w2[q])), reuse * (tf(2) - (beta * w1[q] + alpha * w2[q])));
+                }
             }
             if self.real.solve(&mut self.dw_real).is_err() || self.complex.solve(&mut self.dw_complex).is_err() {
                 return Ok(false);
             }
             let mut sum = 0.0;
-            for q in 0..n {
-                let dw = [self.dw_real[q], self.dw_complex[q].re, self.dw_complex[q].im];
-                let scale = tol.weight(y[q], y[q]);
-                for i in 0..3 {
-                    self.w[i * n + q] += dw[i];
-                    let dz = tm[i][0] * dw[0] + tm[i][1] * dw[1] + tm[i][2] * dw[2];
-                    self.z[i * n + q] += dz;
-                    sum += (dz / scale).powi(2);
+            {
+                let (z0, z12) = self.z.split_at_mut(n);
+                let (z1, z2) = z12.split_at_mut(n);
+                let (w0, w12) = self.w.split_at_mut(n);
+                let (w1, w2) = w12.split_at_mut(n);
+                for q in 0..n {
+                    let dw = [self.dw_real[q], self.dw_complex[q].re, self.dw_complex[q].im];
+                    w0[q] += dw[0];
+                    w1[q] += dw[1];
+                    w2[q] += dw[2];
+                    let dz = [0, 1, 2].map(|i| tm[i][0] * dw[0] + tm[i][1] * dw[1] + tm[i][2] * dw[2]);
+                    z0[q] += dz[0];
+                    z1[q] += dz[1];
+                    z2[q] += dz[2];
+                    let s = self.inv_scale[q];
+                    for d in dz {
+                        sum += (d * s).powi(2);
+                    }
                 }
             }
             let norm = (sum / (3 * n) as f64).sqrt();
