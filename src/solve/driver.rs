@@ -211,6 +211,8 @@ struct Driver<'a> {
     out_t: Vec<f64>,
     out_y: Vec<Vec<f64>>,
     out_h: Vec<Vec<f64>>,
+    /// Output every `stride`-th step: a power of two (1, then doubled by each
+    /// decimation), so that the test is a mask rather than a division.
     stride: u64,
     at_next: usize,
     events: Vec<EventHit>,
@@ -916,7 +918,7 @@ impl<'a> Driver<'a> {
             }
         } else {
             let step_index = self.stats.steps;
-            if stop.is_some() || t_next == self.settings.to || step_index % self.stride == 0 {
+            if stop.is_some() || t_next == self.settings.to || step_index & (self.stride - 1) == 0 {
                 self.record(t_end, y_end);
                 if self.out_t.len() >= self.settings.max_output {
                     self.decimate();
