@@ -149,23 +149,31 @@ pub fn initial_step(
     stats: &mut Stats,
 ) -> f64 {
     let n = y0.len();
-    let zero = vec![0.0; n];
-    let mut f0 = vec![0.0; n];
-    problem.rhs(t0, y0, &mut f0);
+    // One scratch buffer: zeros, f(t0, y0), the Euler step and f there.
+    let mut buf = vec![0.0; 4 * n];
+    let (zero, rest) = buf.split_at_mut(n);
+    let (f0, rest) = rest.split_at_mut(n);
+    let (y1, f1) = rest.split_at_mut(n);
+    let zero = &*zero;
+    problem.rhs(t0, y0, f0);
     stats.rhs_evals += 1;
-    let d0 = weighted_rms(y0, y0, &zero, tol);
-    let d1 = weighted_rms(&f0, y0, &zero, tol);
+    let d0 = weighted_rms(y0, y0, zero, tol);
+    let d1 = weighted_rms(f0, y0, zero, tol);
     if !d1.is_finite() {
         return h_max.min(1e-6);
     }
     let mut h0 = if d0 < 1e-5 || d1 < 1e-5 { 1e-6 } else { 0.01 * d0 / d1 };
     h0 = h0.min(h_max);
-    let y1: Vec<f64> = y0.iter().zip(&f0).map(|(y, f)| y + dir * h0 * f).collect();
-    let mut f1 = vec![0.0; n];
-    problem.rhs(t0 + dir * h0, &y1, &mut f1);
+    for ((x, y), f) in y1.iter_mut().zip(y0).zip(&*f0) {
+        *x = y + dir * h0 * f;
+    }
+    problem.rhs(t0 + dir * h0, y1, f1);
     stats.rhs_evals += 1;
-    let df: Vec<f64> = f1.iter().zip(&f0).map(|(a, b)| a - b).collect();
-    let d2 = weighted_rms(&df, y0, &zero, tol) / h0;
+    // f1 - f0, in place of f1.
+    for (a, b) in f1.iter_mut().zip(&*f0) {
+        *a -= b;
+    }
+    let d2 = weighted_rms(f1, y0, zero, tol) / h0;
     let m = d1.max(d2);
     let h1 = if !m.is_finite() {
         h0 * 1e-3

@@ -211,6 +211,8 @@ struct Driver<'a> {
     out_t: Vec<f64>,
     out_y: Vec<Vec<f64>>,
     out_h: Vec<Vec<f64>>,
+    /// Output every `stride`-th step: a power of two (1, then doubled by each
+    /// decimation), so that the test is a mask rather than a division.
     stride: u64,
     at_next: usize,
     events: Vec<EventHit>,
@@ -348,6 +350,16 @@ impl<'a> Driver<'a> {
     }
 
     fn start(&mut self) {
+        // Room for the output up front, so that a short run does not grow
+        // its columns push by push: every `at` point, or else up to 256
+        // steps within a budget of 4096 stored values.
+        let columns = self.dim + self.n_helpers + 1;
+        let points = match &self.settings.at {
+            Some(at) => at.len(),
+            None => (4096 / columns).clamp(16, 256).min(self.settings.max_output),
+        };
+        self.out_t.reserve(points);
+        self.out_y.iter_mut().chain(self.out_h.iter_mut()).for_each(|col| col.reserve(points));
         let (t, y) = (self.t, self.y.clone());
         match &self.settings.at {
             None => self.record(t, &y),
@@ -592,7 +604,8 @@ impl<'a> Driver<'a> {
                 }
                 None => {
                     self.t = t_next;
-                    self.y.copy_from_slice(&y_new);
+                    // The accepted state: y_new is overwritten by the next attempt.
+                    std::mem::swap(&mut self.y, &mut y_new);
                 }
             }
             let norm = inf_norm(&self.y);
@@ -905,7 +918,7 @@ impl<'a> Driver<'a> {
             }
         } else {
             let step_index = self.stats.steps;
-            if stop.is_some() || t_next == self.settings.to || step_index % self.stride == 0 {
+            if stop.is_some() || t_next == self.settings.to || step_index & (self.stride - 1) == 0 {
                 self.record(t_end, y_end);
                 if self.out_t.len() >= self.settings.max_output {
                     self.decimate();
@@ -1163,12 +1176,12 @@ impl<'a> Driver<'a> {
                 self.decimate();
             }
         }
-        let names: Vec<String> = self.problem.state_names().iter().chain(self.problem.helper_names()).cloned().collect();
+        let names = self.problem.state_names().iter().chain(self.problem.helper_names());
         let extrema = self
             .peaks
             .iter()
             .zip(names)
-            .map(|(p, name)| Extremum { name, max: p.max, t_max: p.t_max, min: p.min, t_min: p.t_min })
+            .map(|(p, name)| Extremum { name: name.clone(), max: p.max, t_max: p.t_max, min: p.min, t_min: p.t_min })
             .collect();
         Run {
             t: self.out_t,
