@@ -44,7 +44,26 @@ fn repeats_for(one: f64) -> u32 {
     (2e-3 / one.max(1e-9)).ceil().clamp(1.0, 10_000.0) as u32
 }
 
+/// Passes over all the cases; each time reported is the fastest of its
+/// passes, so that a burst of other work on the machine during one case's
+/// window does not decide its time (the wasm side and SciPy do the same).
+const PASSES: usize = 2;
+
 fn run() {
+    let mut rows = pass();
+    for _ in 1..PASSES {
+        for (row, again) in rows.iter_mut().zip(pass()) {
+            let (Some(a), Some(b)) = (row["seconds"].as_f64(), again["seconds"].as_f64()) else { continue };
+            if b < a {
+                row["seconds"] = b.into();
+            }
+        }
+    }
+    println!("{}", serde_json::Value::Array(rows));
+}
+
+/// One pass over all the cases: the driver's row and the baseline's of each.
+fn pass() -> Vec<serde_json::Value> {
     let mut rows = Vec::new();
     for c in bench_cases() {
         // The time of one solve (the second of two, past any one-off warm-up).
@@ -96,7 +115,7 @@ fn run() {
             "status": "finished", "y": y, "rhsEvals": nfev, "seconds": secs, "runs": runs,
         }));
     }
-    println!("{}", serde_json::Value::Array(rows));
+    rows
 }
 
 fn plot(input: &str, output: &str) -> Result<(), Box<dyn std::error::Error>> {
