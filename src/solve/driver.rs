@@ -247,8 +247,9 @@ impl<'a> Driver<'a> {
         let n_helpers = problem.helper_names().len();
         let n_events = problem.events().len();
         let n_switches = problem.switch_count();
-        let stepper = (m.build)(dim);
         let switching = m.switching.map(|f| f());
+        let mut stepper = (m.build)(dim);
+        stepper.set_stiffness_estimate(switching.is_some() || stability_limit(m) > 0.0);
         let mut d = Driver {
             ctrl: PiController::new(error_order(m), step_control(m)),
             stability_limit: stability_limit(m),
@@ -700,6 +701,7 @@ impl<'a> Driver<'a> {
                     self.stepper = (next.build)(self.dim);
                     self.ctrl = PiController::new(error_order(next), step_control(next));
                     self.stability_limit = stability_limit(next);
+                    self.stepper.set_stiffness_estimate(true);
                     self.stiff_count = 0;
                     self.nonstiff_count = 0;
                 }

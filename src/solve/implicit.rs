@@ -130,7 +130,8 @@ pub struct ThetaStepper {
     deriv: Derivatives,
     m: Factored,
     at_point: bool,
-    rho: f64,
+    /// The spectral radius at the last Jacobian; `None` when not estimated.
+    rho: Option<f64>,
     f0: Vec<f64>,
     f1: Vec<f64>,
     delta: Vec<f64>,
@@ -147,7 +148,7 @@ impl ThetaStepper {
             deriv: Derivatives::new(n),
             m: Factored::default(),
             at_point: false,
-            rho: 0.0,
+            rho: Some(0.0),
             f0: z(),
             f1: z(),
             delta: z(),
@@ -172,7 +173,9 @@ impl Stepper for ThetaStepper {
         if !self.at_point {
             rates(problem, t, y, &mut self.f0, stats)?;
             self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
-            self.rho = self.deriv.spectral_radius();
+            if let Some(r) = self.rho.as_mut() {
+                *r = self.deriv.spectral_radius();
+            }
             self.at_point = true;
         }
         self.m.factor(n, shifted(&self.deriv.jac, n, 1.0, th * h), stats)?;
@@ -214,7 +217,11 @@ impl Stepper for ThetaStepper {
             self.trial[2][i] = h * self.f0[i];
             self.trial[3][i] = hf1;
         }
-        Ok(Attempt { error: None, stiffness: Some(h.abs() * self.rho) })
+        Ok(Attempt { error: None, stiffness: self.rho.map(|r| h.abs() * r) })
+    }
+
+    fn set_stiffness_estimate(&mut self, on: bool) {
+        self.rho = on.then_some(0.0);
     }
 
     fn accept(&mut self) {
@@ -416,7 +423,8 @@ pub struct Radau {
     first: bool,
     /// The previous attempt from this point had an error above 1.
     rejected: bool,
-    rho: f64,
+    /// The spectral radius at the last Jacobian; `None` when not estimated.
+    rho: Option<f64>,
     f0: Vec<f64>,
     /// The stage increments `Z`, three blocks of `n`.
     z: Vec<f64>,
@@ -468,7 +476,7 @@ impl Radau {
             need_jac: true,
             first: true,
             rejected: false,
-            rho: 0.0,
+            rho: Some(0.0),
             f0: z(n),
             z: z(3 * n),
             w: z(3 * n),
@@ -655,7 +663,9 @@ impl Stepper for Radau {
         while !converged {
             if self.need_jac {
                 self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
-                self.rho = self.deriv.spectral_radius();
+                if let Some(r) = self.rho.as_mut() {
+                    *r = self.deriv.spectral_radius();
+                }
                 self.need_jac = false;
                 self.jac_current = true;
                 self.real.clear();
@@ -712,7 +722,11 @@ impl Stepper for Radau {
         self.trial.0.copy_from_slice(y);
         self.trial.1.copy_from_slice(&self.z);
         self.trial.2 = h;
-        Ok(Attempt { error: Some(error), stiffness: Some(h.abs() * self.rho) })
+        Ok(Attempt { error: Some(error), stiffness: self.rho.map(|r| h.abs() * r) })
+    }
+
+    fn set_stiffness_estimate(&mut self, on: bool) {
+        self.rho = on.then_some(0.0);
     }
 
     fn accept(&mut self) {

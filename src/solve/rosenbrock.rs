@@ -127,7 +127,8 @@ pub struct Rosenbrock {
     h_factored: f64,
     /// Whether `f0`, the Jacobian and `∂f/∂t` belong to the current point.
     at_point: bool,
-    rho: f64,
+    /// The spectral radius at the last Jacobian; `None` when not estimated.
+    rho: Option<f64>,
     f0: Vec<f64>,
     u: Vec<Vec<f64>>,
     arg: Vec<f64>,
@@ -148,7 +149,7 @@ impl Rosenbrock {
             w: Factored::default(),
             h_factored: f64::NAN,
             at_point: false,
-            rho: 0.0,
+            rho: Some(0.0),
             f0: z(),
             u: vec![z(); s],
             arg: z(),
@@ -181,7 +182,9 @@ impl Stepper for Rosenbrock {
             rates(problem, t, y, &mut self.f0, stats)?;
             self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
             self.deriv.time_derivative(problem, t, y, &self.f0, stats)?;
-            self.rho = self.deriv.spectral_radius();
+            if let Some(r) = self.rho.as_mut() {
+                *r = self.deriv.spectral_radius();
+            }
             self.at_point = true;
             self.w.clear();
         }
@@ -239,7 +242,11 @@ impl Stepper for Rosenbrock {
         }
         // A non-finite norm (a zero weight) rejects the step.
         let error = Some(weighted_rms(&self.err, y, y_new, tol)).filter(|e| e.is_finite()).unwrap_or(f64::INFINITY);
-        Ok(Attempt { error: Some(error), stiffness: Some(h.abs() * self.rho) })
+        Ok(Attempt { error: Some(error), stiffness: self.rho.map(|r| h.abs() * r) })
+    }
+
+    fn set_stiffness_estimate(&mut self, on: bool) {
+        self.rho = on.then_some(0.0);
     }
 
     fn accept(&mut self) {

@@ -89,6 +89,12 @@ pub trait Stepper {
     /// The last attempt was accepted (for first-same-as-last reuse and the like).
     fn accept(&mut self);
 
+    /// Whether [`Attempt::stiffness`] is read during this run (by the
+    /// stiffness warning or a switching policy). A method whose estimate
+    /// costs extra work, such as power iteration on each new Jacobian, skips
+    /// it when it is not. By default the estimate is made.
+    fn set_stiffness_estimate(&mut self, _on: bool) {}
+
     /// Forget any data carried between steps: after an event, a switch or a
     /// change of method the next step starts afresh.
     fn restart(&mut self);
