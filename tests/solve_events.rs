@@ -237,3 +237,31 @@ fn helper_peaks_are_located_on_their_rates() {
         assert_eq!((gap.min, gap.t_min), (0.0, 0.0));
     }
 }
+
+#[test]
+fn a_heater_that_trips_on_time_peaks_exactly_at_the_trip() {
+    // Analytic (lumped heating, C T' = P·step(ton − t) − UA (T − Ta)):
+    // T = Ta + P/UA + (T0 − Ta − P/UA) e^{−UA t/C} until ton, then
+    // T = Ta + (T(ton) − Ta) e^{−UA (t − ton)/C}. The switch value is exactly
+    // zero at ton, where step(0) = 1 still heats: the step after the trip
+    // must start across it, or its first stage heats past ton.
+    let sheet = "C = 3348800\nP = 12000\nUA = 45\nTa = 18\nton = 3600\n\
+        heat = P*step(ton - t)\ndT/dt = (heat - UA*(T - Ta))/C\nT(0) = 15\n";
+    let (c, p, ua, ta, ton, t0) = (3348800.0f64, 12000.0, 45.0, 18.0, 3600.0, 15.0);
+    let t_trip = ta + p / ua + (t0 - ta - p / ua) * (-ua * ton / c).exp();
+    let t_end = ta + (t_trip - ta) * (-ua * (21600.0 - ton) / c).exp();
+    for method in ["dp54", "dp853", "bs32", "auto", "radau5", "rodas4"] {
+        let mut m = ratebook::sheet::compile(sheet).unwrap();
+        let s = Settings { method: method.into(), to: 21600.0, tol: Tolerance { rtol: 1e-8, atol: 1e-10 }, ..Settings::default() };
+        let r = solve(&mut m, 0.0, &[t0], &s).unwrap();
+        let temp = &r.extrema[0];
+        assert!((temp.t_max - ton).abs() <= 1e-9 * ton, "{method}: peak at {}", temp.t_max);
+        assert!((temp.max - t_trip).abs() <= 1e-7 * t_trip, "{method}: peak {} vs {t_trip}", temp.max);
+        let last = *r.states[0].last().unwrap();
+        assert!((last - t_end).abs() <= 1e-6 * t_end, "{method}: end {last} vs {t_end}");
+        // The heater's power is first zero at the trip.
+        let heat = &r.extrema[1];
+        assert_eq!((heat.max, heat.min), (p, 0.0));
+        assert!((heat.t_min - ton).abs() <= 1e-9 * ton, "{method}: heater off from {}", heat.t_min);
+    }
+}

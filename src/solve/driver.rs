@@ -600,6 +600,14 @@ impl<'a> Driver<'a> {
             let landed = landed.is_some();
             match hop {
                 Some((tb, yb)) => {
+                    // The far side's values count from the switch on (a
+                    // helper that jumps there has its new extreme there).
+                    if self.settings.extrema {
+                        let h = self.helpers_at(tb, &yb);
+                        for (p, v) in self.peaks.iter_mut().zip(yb.iter().chain(&h)) {
+                            p.see(*v, tb);
+                        }
+                    }
                     self.t = tb;
                     self.y = yb;
                 }
@@ -826,8 +834,12 @@ impl<'a> Driver<'a> {
         let ns = self.n_switches;
         let mut s = vec![0.0; ns];
         let old = sign(self.s_now[k]);
+        // Across: strictly on the other side. A switch value of exactly zero
+        // is not across, whichever way it goes: `step(0)` is 1, so a falling
+        // switch that ends a step on zero still has the near branch there.
+        let across = |v: f64| v != 0.0 && sign(v) != old;
         self.problem.switch_values(t_next, y_new, &mut s);
-        if sign(s[k]) != old || (t_next - self.settings.to) * self.dir >= 0.0 {
+        if across(s[k]) || (t_next - self.settings.to) * self.dir >= 0.0 {
             return None;
         }
         let (mut ga, mut ta) = (s[k], t_next);
@@ -840,14 +852,14 @@ impl<'a> Driver<'a> {
             }
             self.stepper.dense((tau - self.t) / h, &mut ys);
             self.problem.switch_values(tau, &ys, &mut s);
-            if s[k].is_finite() && sign(s[k]) != old {
+            if s[k].is_finite() && across(s[k]) {
                 let gb = s[k];
                 // A zero counts on the near side (sign() is false for 0).
                 let ga = if ga == 0.0 { if old { f64::MIN_POSITIVE } else { -f64::MIN_POSITIVE } } else { ga };
                 let (_, mut tb) = self.root(|dr, tt, y, out| dr.problem.switch_values(tt, y, out), k, ns, ta, tau, ga, gb, h, f64::NAN, y_new);
                 self.stepper.dense((tb - self.t) / h, &mut ys);
                 self.problem.switch_values(tb, &ys, &mut s);
-                if sign(s[k]) == old {
+                if !across(s[k]) {
                     tb = tau;
                     self.stepper.dense((tb - self.t) / h, &mut ys);
                 }
