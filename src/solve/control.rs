@@ -4,7 +4,7 @@
 //! this module alone decides the next `h`.
 
 use super::explicit::weighted_rms;
-use super::stepper::{Stats, Tolerance};
+use super::stepper::{max_of, Stats, Tolerance};
 use crate::problem::Problem;
 
 /// The constants of the step-size controller for one method (see
@@ -108,9 +108,8 @@ impl PiController {
             (c.safety * (self.beta * self.ln_err_prev - self.alpha * ln_err).exp()).clamp(c.fac_min, c.fac_max)
         };
         let fac = if self.rejected { fac.min(1.0) } else { fac };
-        // err_prev = max(err, 1e-4), which also drops the -inf of ln(0); by
-        // comparison, as f64::max becomes a call to `fmax` on wasm32.
-        self.ln_err_prev = if ln_err > LN_ERR_START { ln_err } else { LN_ERR_START };
+        // err_prev = max(err, 1e-4), which also drops the -inf of ln(0).
+        self.ln_err_prev = max_of(ln_err, LN_ERR_START);
         self.rejected = false;
         fac
     }

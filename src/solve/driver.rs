@@ -6,7 +6,7 @@ use super::control::{initial_step, PiController, StepControl};
 use super::locate::{bracketed_root, golden_max};
 use super::methods::{method, methods, MethodInfo};
 use super::stability::{boundary_radius, dominant_eigenvalue, jacobian};
-use super::stepper::{Stats, StepFault, Stepper, Tolerance};
+use super::stepper::{inf_norm, min_of, Stats, StepFault, Stepper, Tolerance};
 use super::{num, Diagnostic, EventHit, Extremum, Level, Run, Settings, SolveError, Status, StepReport, Switching};
 use crate::problem::{Crossing, EventAction, Problem};
 
@@ -181,12 +181,6 @@ impl Peak {
 
 fn sign(v: f64) -> bool {
     v > 0.0
-}
-
-fn inf_norm(y: &[f64]) -> f64 {
-    // `m.max(|v|)` by comparison (a NaN is skipped as `f64::max` does), without
-    // the call to `fmax` that `f64::max` becomes on wasm32: this runs every step.
-    y.iter().fold(0.0, |m: f64, v| if v.abs() > m { v.abs() } else { m })
 }
 
 struct Driver<'a> {
@@ -494,8 +488,7 @@ impl<'a> Driver<'a> {
                     tn
                 }
             } else {
-                // `h_abs.min(h_max)` by comparison (no `fmin` call on wasm32).
-                let tn = self.t + self.dir * if h_abs < h_max { h_abs } else { h_max };
+                let tn = self.t + self.dir * min_of(h_abs, h_max);
                 if (tn - to) * self.dir >= 0.0 {
                     to
                 } else {

@@ -10,7 +10,7 @@
 
 use nalgebra::Complex;
 
-use super::stepper::{Stats, StepFault};
+use super::stepper::{inf_norm, Stats, StepFault};
 use crate::problem::Problem;
 
 /// `∂f/∂y` and `∂f/∂t` at one point, exact when the model provides them and
@@ -123,8 +123,7 @@ impl Derivatives {
             if step == 7 {
                 break;
             }
-            // A plain comparison: `f64::max` is a library call in wasm.
-            let top = w.iter().fold(0.0, |m: f64, x| if x.abs() > m { x.abs() } else { m });
+            let top = inf_norm(w);
             if top == 0.0 || !top.is_finite() {
                 return if top == 0.0 { 0.0 } else { f64::INFINITY };
             }

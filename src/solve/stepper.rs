@@ -35,11 +35,35 @@ impl Tolerance {
     /// The error weight of one component: `atol + rtol·max(|y|, |y_new|)`.
     #[inline]
     pub fn weight(&self, y: f64, y_new: f64) -> f64 {
-        // `a.max(b)` by comparison: the same value (a NaN is ignored), without
-        // the call to `fmax` that `f64::max` becomes on wasm32.
-        let (a, b) = (y.abs(), y_new.abs());
-        self.atol + self.rtol * if a > b || b.is_nan() { a } else { b }
+        self.atol + self.rtol * max_of(y.abs(), y_new.abs())
     }
+}
+
+/// `a.max(b)` by comparison: the same value (a NaN operand is ignored, as
+/// `f64::max` does), without the call to `fmax` that `f64::max` becomes on
+/// wasm32. For the per-step paths.
+#[inline]
+pub(crate) fn max_of(a: f64, b: f64) -> f64 {
+    if a > b || b.is_nan() {
+        a
+    } else {
+        b
+    }
+}
+
+/// `a.min(b)` by comparison, as [`max_of`].
+#[inline]
+pub(crate) fn min_of(a: f64, b: f64) -> f64 {
+    if a < b || b.is_nan() {
+        a
+    } else {
+        b
+    }
+}
+
+/// The largest magnitude in `y` (NaNs skipped; 0 for none).
+pub(crate) fn inf_norm(y: &[f64]) -> f64 {
+    y.iter().fold(0.0, |m, v| max_of(m, v.abs()))
 }
 
 impl Default for Tolerance {
