@@ -596,10 +596,7 @@ impl<'a> Driver<'a> {
                     // The far side's values count from the switch on (a
                     // helper that jumps there has its new extreme there).
                     if self.settings.extrema {
-                        let h = self.helpers_at(tb, &yb);
-                        for (p, v) in self.peaks.iter_mut().zip(yb.iter().chain(&h)) {
-                            p.see(*v, tb);
-                        }
+                        self.see_point(tb, &yb);
                     }
                     self.t = tb;
                     self.y = yb;
@@ -1097,15 +1094,7 @@ impl<'a> Driver<'a> {
         }
         // End value of every quantity.
         self.dense_at(t_end, h, t_next, y_new, &mut ys);
-        for (p, v) in self.peaks.iter_mut().zip(&ys) {
-            p.see(*v, t_end);
-        }
-        if nh > 0 {
-            self.problem.helpers(t_end, &ys, &mut self.helpers_buf);
-            for (p, v) in self.peaks[n..].iter_mut().zip(&self.helpers_buf) {
-                p.see(*v, t_end);
-            }
-        }
+        self.see_point(t_end, &ys);
         // The rates of states and (when the model has them) helpers on the dense output.
         let slope_fn = |d: &mut Self, tt: f64, y: &[f64], out: &mut [f64]| {
             d.stepper.dense_slope((tt - d.t) / h, h, &mut out[..n]);
@@ -1138,6 +1127,20 @@ impl<'a> Driver<'a> {
         }
         self.peak_times = times;
         self.peak_rates = rates;
+    }
+
+    /// Count the state `y` at `t`, and its helpers there, toward the peaks
+    /// and troughs.
+    fn see_point(&mut self, t: f64, y: &[f64]) {
+        for (p, v) in self.peaks.iter_mut().zip(y) {
+            p.see(*v, t);
+        }
+        if self.n_helpers > 0 {
+            self.problem.helpers(t, y, &mut self.helpers_buf);
+            for (p, v) in self.peaks[self.dim..].iter_mut().zip(&self.helpers_buf) {
+                p.see(*v, t);
+            }
+        }
     }
 
     /// Helper peaks without helper rates: golden-section search around each
