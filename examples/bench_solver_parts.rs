@@ -94,7 +94,9 @@ fn main() {
             let mut st = (m.build)(p.y0.len());
             let mut stats = Stats::default();
             let tol = settings.tol;
-            let mut h = initial_step(model.as_mut(), p.t0, &p.y0, 1.0, m.order, &tol, p.t_end, &mut stats);
+            let mut f0 = vec![0.0; p.y0.len()];
+            let mut h = initial_step(model.as_mut(), p.t0, &p.y0, 1.0, m.order, &tol, p.t_end, &mut f0, &mut stats);
+            st.seed_slope(&f0);
             let mut ctrl = PiController::new(tab.error_order, tab.control);
             let (mut t, mut y, mut yn) = (p.t0, p.y0.clone(), p.y0.clone());
             while t < p.t_end {
@@ -105,7 +107,7 @@ fn main() {
                     st.accept();
                     t += hh;
                     std::mem::swap(&mut y, &mut yn);
-                    h = hh * ctrl.accepted(e);
+                    h = hh * ctrl.accepted(e, hh);
                 } else {
                     h = hh * ctrl.rejected(e);
                 }

@@ -48,7 +48,8 @@ pub fn baseline<const N: usize>(tab: &Tableau, f: impl Fn(f64, &[f64], &mut [f64
     let mut h = (100.0 * h0).min(h1).min(t_end);
     let mut ctrl = PiController::new(tab.error_order, tab.control);
     let mut t = 0.0;
-    let mut first_ready = false;
+    // k[0] holds f(0, y0) from the initial step.
+    let mut first_ready = true;
     let mut stage = [0.0; N];
     let mut err = [0.0; N];
     let mut err3 = [0.0; N];
@@ -99,7 +100,7 @@ pub fn baseline<const N: usize>(tab: &Tableau, f: impl Fn(f64, &[f64], &mut [f64
             t = if last { t_end } else { t + h };
             y.copy_from_slice(&stage);
             k.swap(0, s - 1);
-            h *= ctrl.accepted(en);
+            h *= ctrl.accepted(en, h);
         } else {
             h *= ctrl.rejected(en);
         }

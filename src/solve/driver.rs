@@ -451,7 +451,10 @@ impl<'a> Driver<'a> {
             (None, Some(h)) => h.min(h_max),
             (None, None) => {
                 let (t, y) = (self.t, self.y.clone());
-                initial_step(&mut *self.problem, t, &y, self.dir, self.method.order, &self.tol, h_max, &mut self.stats)
+                let mut f0 = vec![0.0; self.dim];
+                let h = initial_step(&mut *self.problem, t, &y, self.dir, self.method.order, &self.tol, h_max, &mut f0, &mut self.stats);
+                self.stepper.seed_slope(&f0);
+                h
             }
         };
         if !(h_abs > 0.0) {
@@ -630,7 +633,7 @@ impl<'a> Driver<'a> {
             }
             if let Some(e) = err {
                 if !landed {
-                    h_abs = h.abs() * self.ctrl.accepted(e);
+                    h_abs = h.abs() * self.ctrl.accepted(e, h);
                 }
                 if std::mem::take(&mut self.dip) {
                     h_abs = h_abs.min(0.5 * h.abs());

@@ -369,6 +369,15 @@ impl<const N: usize> Stepper for ExplicitStepper<N> {
         self.end = None;
     }
 
+    fn seed_slope(&mut self, f: &[f64]) {
+        if f.len() == self.dim && f.iter().all(|v| v.is_finite()) {
+            self.k[..self.dim].copy_from_slice(f);
+            self.first_ready = true;
+            self.accepted = false;
+            self.end = None;
+        }
+    }
+
     fn prepare_dense(&mut self, problem: &mut dyn Problem, stats: &mut Stats) {
         if self.dense_ready {
             return;

@@ -123,6 +123,11 @@ pub trait Stepper {
     /// change of method the next step starts afresh.
     fn restart(&mut self);
 
+    /// `f(t, y)` at the state the next attempt starts from, already
+    /// evaluated (by the automatic initial step), for a method whose first
+    /// stage it is. By default it is not used.
+    fn seed_slope(&mut self, _f: &[f64]) {}
+
     /// Dense output over the step of the last successful attempt `[t, t + h]`
     /// (the step the driver is about to accept, or has just accepted): the
     /// state at `t + theta·h`, `0 ≤ theta ≤ 1`, into `out`. The driver calls
