@@ -178,6 +178,26 @@ impl Frame {
     pub fn to_array(self) -> [f64; 8] {
         [self.left, self.top, self.right, self.bottom, self.x0, self.x1, self.y0, self.y1]
     }
+
+    /// The backend position, in fractional pixels, of the point `(x, y)` in
+    /// axis units (log10 on a log axis).
+    pub fn pixel(&self, x: f64, y: f64) -> (f64, f64) {
+        let sx = (self.right - self.left) / (self.x1 - self.x0);
+        let sy = (self.bottom - self.top) / (self.y1 - self.y0);
+        (self.left + (x - self.x0) * sx, self.bottom - (y - self.y0) * sy)
+    }
+}
+
+/// A backend that strokes some paths itself, in fractional pixels (the
+/// page's canvas): the direction field's many strokes as one path, far faster
+/// than one element each, and the curves without plotters' rounding of every
+/// point to a whole pixel, which shows as small steps along a sloping line.
+pub trait Strokes {
+    /// The direction field's strokes, in pixels, in [`FIELD_CSS`].
+    fn field(&mut self, strokes: &[Vec<(i32, i32)>]);
+    /// One unbroken run of a curve, in fractional pixels, `width` pixels
+    /// wide, dashed 6 on, 4 off when `dashed`.
+    fn curve(&mut self, points: &[(f64, f64)], colour: RGBColor, width: u32, dashed: bool);
 }
 
 /// A value on an axis: log10 on a log axis (NaN for non-positive values).
@@ -325,13 +345,13 @@ where
     figure_with(root, fig, None)
 }
 
-/// [`figure`], with the direction field's strokes ([`field_strokes`]) handed
-/// to `stroke_field` when given (a canvas strokes them all as one path, far
-/// faster than one element each), in their place between grid and curves.
+/// [`figure`], with the direction field's strokes ([`field_strokes`]) and
+/// the curves handed to `strokes` when given, in their place between the grid
+/// and the marks.
 pub fn figure_with<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     fig: &Figure,
-    stroke_field: Option<&mut dyn FnMut(&[Vec<(i32, i32)>])>,
+    mut strokes: Option<&mut dyn Strokes>,
 ) -> Result<Frame, DrawError>
 where
     DB::ErrorType: 'static,
@@ -392,10 +412,10 @@ where
         y1,
     };
 
-    let strokes = field_strokes(fig, &frame);
-    match stroke_field {
-        Some(f) => f(&strokes),
-        None => draw_field(root, &strokes)?,
+    let field = field_strokes(fig, &frame);
+    match strokes.as_deref_mut() {
+        Some(st) => st.field(&field),
+        None => draw_field(root, &field)?,
     }
 
     let mut legend = Vec::new();
@@ -408,7 +428,10 @@ where
             legend.push(text::LegendEntry { label: &l.label, colour: c, width: l.width, dashed: l.dashed });
         }
         for run in runs {
-            if l.dashed {
+            if let Some(st) = strokes.as_deref_mut() {
+                let px: Vec<(f64, f64)> = run.iter().map(|&(x, y)| frame.pixel(x, y)).collect();
+                st.curve(&px, c, l.width.max(1), l.dashed);
+            } else if l.dashed {
                 chart.draw_series(DashedLineSeries::new(run, 6, 4, style))?;
             } else {
                 chart.draw_series(LineSeries::new(run, style))?;
@@ -549,8 +572,7 @@ pub fn field_strokes(fig: &Figure, frame: &Frame) -> Vec<Vec<(i32, i32)>> {
         if !norm.is_finite() {
             continue;
         }
-        let cx = frame.left + (x - frame.x0) * sx;
-        let cy = frame.bottom - (y - frame.y0) * sy;
+        let (cx, cy) = frame.pixel(x, y);
         if norm == 0.0 {
             // A rest point: a dot.
             out.push(vec![px(cx - 1.0, cy), px(cx + 1.0, cy)]);
@@ -632,6 +654,52 @@ mod tests {
         };
         assert_eq!((frame.x0, frame.x1, frame.y0, frame.y1), (1.0, 3.0, 0.0, 0.5));
         assert!(frame.left > 40.0 && frame.right <= 400.0 && frame.top < frame.bottom && frame.bottom < 300.0);
+    }
+
+    #[test]
+    fn a_backend_with_its_own_strokes_gets_the_curves_in_fractional_pixels() {
+        #[derive(Default)]
+        struct Record(Vec<(Vec<(f64, f64)>, RGBColor, u32, bool)>);
+        impl Strokes for Record {
+            fn field(&mut self, _: &[Vec<(i32, i32)>]) {}
+            fn curve(&mut self, points: &[(f64, f64)], colour: RGBColor, width: u32, dashed: bool) {
+                self.0.push((points.to_vec(), colour, width, dashed));
+            }
+        }
+        // A straight line across the whole shown range, 31 points.
+        let x: Vec<f64> = (0..=30).map(|i| i as f64 / 30.0).collect();
+        let fig = Figure {
+            lines: vec![Line { label: "ramp".into(), y: x.iter().map(|v| 2.0 * v).collect(), x, colour: 1, width: 2, dashed: true, ..Default::default() }],
+            x_range: Some((0.0, 1.0)),
+            y_range: Some((0.0, 2.0)),
+            ..Default::default()
+        };
+        let mut svg = String::new();
+        let mut rec = Record::default();
+        let frame = {
+            let root = SVGBackend::with_string(&mut svg, (400, 300)).into_drawing_area();
+            figure_with(&root, &fig, Some(&mut rec)).unwrap()
+        };
+        assert_eq!(rec.0.len(), 1);
+        let (pts, colour, width, dashed) = &rec.0[0];
+        assert_eq!((*colour, *width, *dashed), (super::colour(1), 2, true));
+        assert_eq!(pts.len(), 31);
+        // The ends at the frame's corners, every point on the straight line
+        // between them, and most of them between whole pixels.
+        assert_eq!(pts[0], (frame.left, frame.bottom));
+        assert_eq!(pts[30], (frame.right, frame.top));
+        for (i, &(px, py)) in pts.iter().enumerate() {
+            let f = i as f64 / 30.0;
+            assert!((px - (frame.left + f * (frame.right - frame.left))).abs() < 1e-9);
+            assert!((py - (frame.bottom - f * (frame.bottom - frame.top))).abs() < 1e-9);
+        }
+        assert!(pts.iter().filter(|p| p.0.fract() != 0.0 || p.1.fract() != 0.0).count() > 20);
+        // The curve is not drawn a second time by the backend itself: only
+        // the legend's sample is left in its colour.
+        let c = super::colour(1);
+        let ink = format!("stroke=\"#{:02X}{:02X}{:02X}\"", c.0, c.1, c.2);
+        let plain = figure_svg(&fig, 400, 300).unwrap();
+        assert!(svg.matches(&ink).count() + 30 <= plain.matches(&ink).count(), "{} {}", svg.matches(&ink).count(), plain.matches(&ink).count());
     }
 
     #[test]

@@ -220,25 +220,8 @@ impl Plot {
             .and_then(|c| c.dyn_into::<web_sys::CanvasRenderingContext2d>().ok());
         let backend = plotters_canvas::CanvasBackend::with_canvas_object(canvas)
             .ok_or_else(|| error_with("no 2D context on this canvas", &[]))?;
-        // The field's strokes go to the context as one path.
-        let mut stroke = |strokes: &[Vec<(i32, i32)>]| {
-            let Some(ctx) = &ctx else { return };
-            ctx.begin_path();
-            for s in strokes {
-                for (k, &(x, y)) in s.iter().enumerate() {
-                    let (x, y) = (x as f64 + 0.5, y as f64 + 0.5);
-                    if k == 0 {
-                        ctx.move_to(x, y);
-                    } else {
-                        ctx.line_to(x, y);
-                    }
-                }
-            }
-            ctx.set_stroke_style_str(draw::FIELD_CSS);
-            ctx.set_line_width(1.0);
-            ctx.stroke();
-        };
-        let frame = draw::figure_with(&draw::text::measured(backend), &self.fig, Some(&mut stroke))
+        let mut strokes = CanvasStrokes(ctx);
+        let frame = draw::figure_with(&draw::text::measured(backend), &self.fig, Some(&mut strokes))
             .map_err(|e| error_with(&e.0, &[]))?;
         Ok(frame.to_array().to_vec())
     }
@@ -246,6 +229,55 @@ impl Plot {
     /// The same plot as an SVG document of `width` × `height` pixels.
     pub fn svg(&self, width: u32, height: u32) -> Result<String, JsValue> {
         draw::figure_svg(&self.fig, width, height).map_err(|e| error_with(&e.0, &[]))
+    }
+}
+
+/// The canvas's own strokes for [`draw::figure_with`]: the direction field
+/// as one path, and each curve in fractional pixels (anti-aliased, without
+/// the whole-pixel steps of plotters' paths).
+struct CanvasStrokes(Option<web_sys::CanvasRenderingContext2d>);
+
+impl draw::Strokes for CanvasStrokes {
+    fn field(&mut self, strokes: &[Vec<(i32, i32)>]) {
+        let Some(ctx) = &self.0 else { return };
+        ctx.begin_path();
+        for s in strokes {
+            for (k, &(x, y)) in s.iter().enumerate() {
+                // Pixel centres: crisp one-pixel strokes.
+                let (x, y) = (x as f64 + 0.5, y as f64 + 0.5);
+                if k == 0 {
+                    ctx.move_to(x, y);
+                } else {
+                    ctx.line_to(x, y);
+                }
+            }
+        }
+        ctx.set_stroke_style_str(draw::FIELD_CSS);
+        ctx.set_line_width(1.0);
+        ctx.stroke();
+    }
+
+    fn curve(&mut self, points: &[(f64, f64)], colour: plotters::style::RGBColor, width: u32, dashed: bool) {
+        let Some(ctx) = &self.0 else { return };
+        ctx.save();
+        ctx.begin_path();
+        for (k, &(x, y)) in points.iter().enumerate() {
+            if k == 0 {
+                ctx.move_to(x, y);
+            } else {
+                ctx.line_to(x, y);
+            }
+        }
+        ctx.set_stroke_style_str(&format!("rgb({},{},{})", colour.0, colour.1, colour.2));
+        ctx.set_line_width(width as f64);
+        ctx.set_line_join("round");
+        ctx.set_line_cap("round");
+        if dashed {
+            let dash = js_sys::Array::of2(&6.0.into(), &4.0.into());
+            let _ = ctx.set_line_dash(&dash);
+        }
+        ctx.stroke();
+        ctx.restore();
     }
 }
 
