@@ -6,6 +6,7 @@
 //! figure drawn on the SVG backend is the SVG download, so the two always
 //! agree.
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::prelude::*;
@@ -337,6 +338,100 @@ fn shown_range<'a>(given: Option<(f64, f64)>, log: bool, data: impl Iterator<Ite
     }
 }
 
+/// The tick positions of one axis showing `lo..hi` (log10 units on a log
+/// axis): labelled (bold) ones, then the light grid between them. A linear
+/// axis takes plotters' own choice for `labels` labels. A log axis is ticked
+/// at round numbers in data units: every decade (every k-th when there are
+/// too many) with the other whole mantissas as the light grid; else 1, 2 and
+/// 5 of each decade; else every whole mantissa; and across less than about a
+/// factor of two, evenly spaced round values (steps of 1, 2 or 5 of a power of
+/// ten), so that a short log axis reads 8, 9, 10, 20, 30 rather than 7.943,
+/// 10, 12.59.
+fn ticks(lo: f64, hi: f64, log: bool, labels: usize) -> (Vec<f64>, Vec<f64>) {
+    use plotters::coord::ranged1d::{BoldPoints, LightPoints};
+    if !log {
+        let r: RangedCoordf64 = (lo..hi).into();
+        return (r.key_points(BoldPoints(labels)), r.key_points(LightPoints::new(labels, labels * 10)));
+    }
+    if !(lo.is_finite() && hi.is_finite() && hi > lo) {
+        return (vec![], vec![]);
+    }
+    let slack = 1e-9 * (hi - lo);
+    let within = |v: f64| v >= lo - slack && v <= hi + slack;
+    let (e0, e1) = (lo.floor() as i64, hi.ceil() as i64);
+    let at = |mantissas: &[f64]| -> Vec<f64> {
+        (e0..=e1).flat_map(|e| mantissas.iter().map(move |m| m.log10() + e as f64)).filter(|&v| within(v)).collect()
+    };
+    const ALL: [f64; 9] = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0];
+    let decades = at(&[1.0]);
+    if decades.len() >= 3 {
+        let every = decades.len().div_ceil(labels.max(1)) as i64;
+        let bold: Vec<f64> = decades.into_iter().filter(|v| (v.round() as i64).rem_euclid(every) == 0).collect();
+        let light = if every == 1 && hi - lo <= 6.0 { at(&ALL[1..]) } else { vec![] };
+        return (bold, light);
+    }
+    let bold = at(&[1.0, 2.0, 5.0]);
+    if bold.len() >= 3 {
+        let light = at(&ALL).into_iter().filter(|v| !bold.iter().any(|b| (b - v).abs() < 1e-12)).collect();
+        return (bold, light);
+    }
+    let bold = at(&ALL);
+    if bold.len() >= 3 {
+        return (bold, vec![]);
+    }
+    // A narrow range: even steps of a round size in data units.
+    let (a, b) = (10f64.powf(lo), 10f64.powf(hi));
+    let raw = (b - a) / 5.0;
+    let p = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0].iter().map(|m| m * p).find(|&s| s >= raw).unwrap_or(10.0 * p);
+    // (10^log10(14) is 13.999999999999998.)
+    let first = (a / step * (1.0 - 1e-9)).ceil() as i64;
+    let last = (b / step * (1.0 + 1e-9)).floor() as i64;
+    let bold = (first..=last).map(|k| (k as f64 * step).log10()).filter(|&v| within(v)).collect();
+    (bold, vec![])
+}
+
+/// Labels on the x axis and on the y axis (at most; a log axis may take fewer).
+const X_LABELS: usize = 8;
+const Y_LABELS: usize = 7;
+
+/// One axis of a figure's chart: plotters' f64 axis, ticked by [`ticks`].
+/// (plotters' own key-point wrapper gives up the label formatter that the
+/// mesh needs.)
+struct Axis {
+    inner: RangedCoordf64,
+    bold: Vec<f64>,
+    light: Vec<f64>,
+}
+
+impl Axis {
+    fn new(lo: f64, hi: f64, log: bool, labels: usize) -> Self {
+        let (bold, light) = ticks(lo, hi, log, labels);
+        Axis { inner: (lo..hi).into(), bold, light }
+    }
+}
+
+impl plotters::coord::ranged1d::Ranged for Axis {
+    type FormatOption = plotters::coord::ranged1d::DefaultFormatting;
+    type ValueType = f64;
+
+    fn map(&self, value: &f64, limit: (i32, i32)) -> i32 {
+        self.inner.map(value, limit)
+    }
+
+    fn key_points<Hint: plotters::coord::ranged1d::KeyPointHint>(&self, hint: Hint) -> Vec<f64> {
+        if hint.weight().allow_light_points() {
+            self.light.clone()
+        } else {
+            self.bold.clone()
+        }
+    }
+
+    fn range(&self) -> std::ops::Range<f64> {
+        self.inner.range()
+    }
+}
+
 /// Draw `fig` on `root`, filling it. Returns where the plotting area landed.
 pub fn figure<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, fig: &Figure) -> Result<Frame, DrawError>
 where
@@ -381,7 +476,7 @@ where
         .margin_top(if fig.rules.is_empty() { MARGIN } else { 8 + RULE_ROW * rows.max(1) as i32 })
         .x_label_area_size(40)
         .y_label_area_size(Y_LABEL_AREA)
-        .build_cartesian_2d(x0..x1, y0..y1)?;
+        .build_cartesian_2d(Axis::new(x0, x1, fig.log_x, X_LABELS), Axis::new(y0, y1, fig.log_y, Y_LABELS))?;
     let x_fmt = if fig.log_x { log_tick_label } else { tick_label };
     let y_fmt = if fig.log_y { log_tick_label } else { tick_label };
     let x_fmt = move |v: &f64| x_fmt(*v);
@@ -392,8 +487,8 @@ where
         .y_desc(fig.y_label.as_str())
         .x_label_formatter(&x_fmt)
         .y_label_formatter(&y_fmt)
-        .x_labels(8)
-        .y_labels(7)
+        .x_labels(X_LABELS)
+        .y_labels(Y_LABELS)
         .axis_desc_style(("sans-serif", 15).into_font().color(&INK))
         .label_style(("sans-serif", 12).into_font().color(&INK))
         .light_line_style(RGBColor(0xee, 0xee, 0xee))
@@ -804,6 +899,34 @@ mod tests {
         fig.rules = rules_at(&[1.0, 1.02, 1.04, 1.06, 1.08], "alarm").rules;
         let svg = figure_svg(&fig, 500, 300).unwrap();
         assert_eq!(svg.lines().filter(|l| l.trim() == "alarm").count(), RULE_ROWS, "{svg}");
+    }
+
+    #[test]
+    fn log_axes_are_ticked_at_round_numbers() {
+        let data = |lo: f64, hi: f64, labels: usize| -> (Vec<String>, usize) {
+            let (bold, light) = ticks(lo.log10(), hi.log10(), true, labels);
+            (bold.iter().map(|&v| log_tick_label(v)).collect(), light.len())
+        };
+        // A step-size axis across a factor of four.
+        assert_eq!(data(7.0, 32.0, 8), (vec!["7", "8", "9", "10", "20", "30"].into_iter().map(String::from).collect(), 0));
+        // One and a half decades: 1, 2 and 5, with the other mantissas light.
+        let (b, l) = data(1.0, 30.0, 8);
+        assert_eq!(b, ["1", "2", "5", "10", "20"]);
+        assert_eq!(l, 7);
+        // Two decades: the decades, the rest light.
+        let (b, l) = data(1.0, 100.0, 8);
+        assert_eq!(b, ["1", "10", "100"]);
+        assert_eq!(l, 16);
+        // Nine decades with room for seven labels: every second one.
+        let (b, l) = data(1e-8, 1.0, 7);
+        assert_eq!(b, ["1e-8", "1e-6", "1e-4", "0.01", "1"]);
+        assert_eq!(l, 0);
+        // Less than a factor of two: even round steps.
+        assert_eq!(data(10.0, 14.0, 8).0, ["10", "11", "12", "13", "14"]);
+        assert_eq!(data(0.0021, 0.0029, 8).0, ["0.0022", "0.0024", "0.0026", "0.0028"]);
+        // A linear axis keeps plotters' choice; a broken range has none.
+        assert!(ticks(0.0, 1.0, false, 8).0.len() >= 5);
+        assert_eq!(ticks(f64::NAN, 1.0, true, 8), (vec![], vec![]));
     }
 
     #[test]

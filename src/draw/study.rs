@@ -93,63 +93,58 @@ pub struct ErrorLine<'a> {
     pub order: Option<f64>,
 }
 
-/// Draw errors against step size on log-log axes, one line of markers per
-/// quantity, each with a dashed guide of slope `order` through its finest point.
+/// Draw errors against step size on log-log axes, one line of dots per
+/// quantity, each with a dashed guide of slope `order` through its finest
+/// point: a [`Figure`](super::Figure), so that it is ticked and drawn as every
+/// other plot.
 pub fn convergence<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, lines: &[ErrorLine]) -> Result<(), DrawError>
 where
     DB::ErrorType: 'static,
 {
-    root.fill(&WHITE)?;
     let good = |h: f64, e: f64| h > 0.0 && e > 0.0 && h.is_finite() && e.is_finite();
-    let pts = || lines.iter().flat_map(|l| l.h.iter().zip(l.error).filter(|(h, e)| good(**h, **e)));
-    let (mut hx0, mut hx1, mut ey0, mut ey1) = (f64::INFINITY, 0.0f64, f64::INFINITY, 0.0f64);
-    for (&h, &e) in pts() {
-        hx0 = hx0.min(h);
-        hx1 = hx1.max(h);
-        ey0 = ey0.min(e);
-        ey1 = ey1.max(e);
-    }
+    let pts = |l: &ErrorLine| -> Vec<(f64, f64)> { l.h.iter().zip(l.error).filter(|(h, e)| good(**h, **e)).map(|(h, e)| (*h, *e)).collect() };
+    let all: Vec<(f64, f64)> = lines.iter().flat_map(pts).collect();
+    let (mut hx0, mut hx1, mut ey0, mut ey1) = all.iter().fold((f64::INFINITY, 0.0f64, f64::INFINITY, 0.0f64), |(a, b, c, d), &(h, e)| {
+        (a.min(h), b.max(h), c.min(e), d.max(e))
+    });
     if !hx0.is_finite() {
         (hx0, hx1, ey0, ey1) = (1e-3, 1.0, 1e-6, 1.0);
     }
-    let (hx0, hx1) = (hx0 / 1.5, hx1 * 1.5);
-    let (ey0, ey1) = (ey0 / 4.0, ey1 * 4.0);
-    let mut chart = ChartBuilder::on(root)
-        .margin(12)
-        .x_label_area_size(36)
-        .y_label_area_size(64)
-        .build_cartesian_2d((hx0..hx1).log_scale(), (ey0..ey1).log_scale())?;
-    chart
-        .configure_mesh()
-        .x_desc("step h")
-        .y_desc("error")
-        .x_labels(5)
-        .y_labels(6)
-        .x_label_formatter(&|v| crate::study::digits::with_digits(*v, 2))
-        .y_label_formatter(&|v| format!("{v:.0e}"))
-        .light_line_style(WHITE)
-        .draw()?;
-    let mut legend = Vec::new();
+    let mut fig = super::Figure {
+        x_label: "step h".into(),
+        y_label: "error".into(),
+        x_range: Some((hx0 / 1.5, hx1 * 1.5)),
+        y_range: Some((ey0 / 4.0, ey1 * 4.0)),
+        log_x: true,
+        log_y: true,
+        ..Default::default()
+    };
     for (i, l) in lines.iter().enumerate() {
-        let color = PALETTE[i % PALETTE.len()];
-        let p: Vec<(f64, f64)> = l.h.iter().zip(l.error).filter(|(h, e)| good(**h, **e)).map(|(h, e)| (*h, *e)).collect();
-        chart.draw_series(LineSeries::new(p.clone(), color.stroke_width(2)).point_size(4))?;
-        legend.push(super::text::LegendEntry { label: l.label, colour: color, width: 2, dashed: false });
+        let p = pts(l);
+        let colour = (i % PALETTE.len()) as i32;
         if let (Some(order), Some(&(hf, ef))) = (l.order, p.iter().min_by(|a, b| a.0.total_cmp(&b.0))) {
-            let guide = |h: f64| ef * (h / hf).powf(order);
-            let (ga, gb) = (hf, hx1 / 1.5);
-            let n = 12;
-            let seg: Vec<(f64, f64)> = (0..=n)
-                .map(|k| ga * (gb / ga).powf(k as f64 / n as f64))
-                .map(|h| (h, guide(h)))
-                .filter(|(_, e)| *e >= ey0 && *e <= ey1)
-                .collect();
-            // Dashes: every other piece of the guide.
-            chart.draw_series(seg.windows(2).step_by(2).map(|w| PathElement::new(vec![w[0], w[1]], color.mix(0.5))))?;
+            // A straight line on log-log axes: its two ends (the figure clips it).
+            let h_end = hx1 * 1.5;
+            fig.lines.push(super::Line {
+                x: vec![hf, h_end],
+                y: vec![ef, ef * (h_end / hf).powf(order)],
+                colour,
+                width: 1,
+                dashed: true,
+                ..Default::default()
+            });
         }
+        fig.lines.push(super::Line {
+            label: l.label.into(),
+            x: p.iter().map(|q| q.0).collect(),
+            y: p.iter().map(|q| q.1).collect(),
+            colour,
+            width: 2,
+            dots: true,
+            ..Default::default()
+        });
     }
-    let (px, py) = chart.plotting_area().get_pixel_range();
-    super::text::legend(root, &legend, (px.start, py.start, px.end, py.end), super::text::Corner::LowerRight)?;
+    super::figure(root, &fig)?;
     root.present()?;
     Ok(())
 }
