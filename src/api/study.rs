@@ -249,7 +249,6 @@ pub fn stability_svg(method: &str, title: &str, hl: &[(f64, f64)], width: u32, h
 /// An SVG log-log plot of a convergence study's errors against h.
 pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String, ApiError> {
     use crate::draw::study::{convergence, ErrorLine};
-    use plotters::prelude::*;
     let labels: Vec<String> = study.lines.iter().map(|l| format!("{}, {}", l.label.replace('`', ""), l.method_name)).collect();
     let lines: Vec<ErrorLine> = study
         .lines
@@ -257,12 +256,7 @@ pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String,
         .zip(&labels)
         .map(|(l, lab)| ErrorLine { label: lab, h: &l.h, error: &l.errors, order: Some(l.order as f64) })
         .collect();
-    let mut svg = String::new();
-    {
-        let root = crate::draw::text::measured(SVGBackend::with_string(&mut svg, (width.clamp(200, 2000), height.clamp(150, 2000))));
-        convergence(&root, &lines).map_err(|e| invalid("drawing", e.0))?;
-    }
-    Ok(svg)
+    crate::draw::figure_svg(&convergence(&lines), width.clamp(200, 2000), height.clamp(150, 2000)).map_err(|e| invalid("drawing", e.0))
 }
 
 #[cfg(test)]

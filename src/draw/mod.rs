@@ -199,7 +199,16 @@ pub trait Strokes {
     /// One unbroken run of a curve, in fractional pixels, `width` pixels
     /// wide, dashed 6 on, 4 off when `dashed`.
     fn curve(&mut self, points: &[(f64, f64)], colour: RGBColor, width: u32, dashed: bool);
+    /// Whether the figure should draw a marker ([`ANCHOR`], a one-pixel
+    /// square) on the backend where the strokes belong, for a backend that
+    /// splices them in afterwards (SVG). No by default.
+    fn anchor(&self) -> bool {
+        false
+    }
 }
+
+/// The fill of the marker drawn for [`Strokes::anchor`]; no figure uses it.
+pub const ANCHOR: RGBColor = RGBColor(0x01, 0x02, 0x03);
 
 /// A value on an axis: log10 on a log axis (NaN for non-positive values).
 fn axis_value(v: f64, log: bool) -> f64 {
@@ -509,7 +518,12 @@ where
 
     let field = field_strokes(fig, &frame);
     match strokes.as_deref_mut() {
-        Some(st) => st.field(&field),
+        Some(st) => {
+            if st.anchor() {
+                root.draw(&Rectangle::new([(0, 0), (1, 1)], ANCHOR.filled()))?;
+            }
+            st.field(&field)
+        }
         None => draw_field(root, &field)?,
     }
 
@@ -702,14 +716,70 @@ where
     Ok(())
 }
 
-/// Draw `fig` as an SVG document of `width` × `height` pixels.
+/// Draw `fig` as an SVG document of `width` × `height` pixels, its curves
+/// in fractional pixels as on the canvas.
 pub fn figure_svg(fig: &Figure, width: u32, height: u32) -> Result<String, DrawError> {
     let mut svg = String::new();
+    let mut strokes = SvgStrokes::default();
     {
         let root = text::measured(SVGBackend::with_string(&mut svg, (width, height)));
-        figure(&root, fig)?;
+        figure_with(&root, fig, Some(&mut strokes))?;
     }
-    Ok(svg)
+    Ok(strokes.splice(svg))
+}
+
+/// The SVG's own strokes: the field and the curves as `<polyline>`
+/// elements, spliced in at the [`ANCHOR`] marker.
+#[derive(Default)]
+struct SvgStrokes(String);
+
+impl SvgStrokes {
+    fn polyline(&mut self, points: impl Iterator<Item = (f64, f64)>, stroke: &str, width: u32, dashed: bool) {
+        use std::fmt::Write;
+        let _ = write!(self.0, r#"<polyline fill="none" stroke="{stroke}" stroke-width="{width}" stroke-linejoin="round""#);
+        if dashed {
+            self.0.push_str(r#" stroke-dasharray="6 4""#);
+        }
+        self.0.push_str(r#" points=""#);
+        for (x, y) in points {
+            let _ = write!(self.0, "{},{} ", round2(x), round2(y));
+        }
+        self.0.push_str("\"/>\n");
+    }
+
+    /// `svg` with the marker replaced by the strokes.
+    fn splice(self, svg: String) -> String {
+        let fill = format!(r##"fill="#{:02X}{:02X}{:02X}""##, ANCHOR.0, ANCHOR.1, ANCHOR.2);
+        let Some(at) = svg.find(&fill) else { return svg };
+        let (Some(start), Some(len)) = (svg[..at].rfind('<'), svg[at..].find("/>")) else { return svg };
+        let mut out = String::with_capacity(svg.len() + self.0.len());
+        out.push_str(&svg[..start]);
+        out.push_str(&self.0);
+        out.push_str(svg[at + len + 2..].trim_start_matches('\n'));
+        out
+    }
+}
+
+/// `v` to two decimals, without trailing zeros.
+fn round2(v: f64) -> String {
+    let s = format!("{v:.2}");
+    s.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
+impl Strokes for SvgStrokes {
+    fn field(&mut self, strokes: &[Vec<(i32, i32)>]) {
+        for s in strokes {
+            self.polyline(s.iter().map(|&(x, y)| (x as f64, y as f64)), FIELD_CSS, 1, false);
+        }
+    }
+
+    fn curve(&mut self, points: &[(f64, f64)], c: RGBColor, width: u32, dashed: bool) {
+        self.polyline(points.iter().copied(), &format!("#{:02X}{:02X}{:02X}", c.0, c.1, c.2), width, dashed);
+    }
+
+    fn anchor(&self) -> bool {
+        true
+    }
 }
 
 #[cfg(test)]
@@ -793,8 +863,22 @@ mod tests {
         // the legend's sample is left in its colour.
         let c = super::colour(1);
         let ink = format!("stroke=\"#{:02X}{:02X}{:02X}\"", c.0, c.1, c.2);
-        let plain = figure_svg(&fig, 400, 300).unwrap();
+        let mut plain = String::new();
+        {
+            let root = SVGBackend::with_string(&mut plain, (400, 300)).into_drawing_area();
+            figure(&root, &fig).unwrap();
+        }
         assert!(svg.matches(&ink).count() + 30 <= plain.matches(&ink).count(), "{} {}", svg.matches(&ink).count(), plain.matches(&ink).count());
+        // The SVG export splices the same curve in, in fractional pixels and
+        // dashed, where the marker was (under the legend), and the marker is gone.
+        let export = figure_svg(&fig, 400, 300).unwrap();
+        let curve = export.lines().find(|l| l.contains("stroke-dasharray=\"6 4\"")).expect("the dashed curve");
+        assert!(curve.contains(&ink) && curve.contains('.'), "{curve}");
+        let points = curve.split("points=\"").nth(1).and_then(|p| p.split('"').next()).unwrap_or("");
+        assert_eq!(points.split_whitespace().filter(|p| p.contains(',')).count(), 31, "{curve}");
+        assert!(!export.contains("#010203"));
+        let line_of = |f: &dyn Fn(&str) -> bool| export.lines().position(f);
+        assert!(line_of(&|l| l == curve) < line_of(&|l| l.trim() == "ramp"), "the curve goes under the legend");
     }
 
     #[test]

@@ -93,14 +93,11 @@ pub struct ErrorLine<'a> {
     pub order: Option<f64>,
 }
 
-/// Draw errors against step size on log-log axes, one line of dots per
+/// The log-log plot of errors against step size, one line of dots per
 /// quantity, each with a dashed guide of slope `order` through its finest
-/// point: a [`Figure`](super::Figure), so that it is ticked and drawn as every
-/// other plot.
-pub fn convergence<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, lines: &[ErrorLine]) -> Result<(), DrawError>
-where
-    DB::ErrorType: 'static,
-{
+/// point, as a [`Figure`](super::Figure): ticked and drawn as every other
+/// plot ([`figure_svg`](super::figure_svg) for the report).
+pub fn convergence(lines: &[ErrorLine]) -> super::Figure {
     let good = |h: f64, e: f64| h > 0.0 && e > 0.0 && h.is_finite() && e.is_finite();
     let pts = |l: &ErrorLine| -> Vec<(f64, f64)> { l.h.iter().zip(l.error).filter(|(h, e)| good(**h, **e)).map(|(h, e)| (*h, *e)).collect() };
     let all: Vec<(f64, f64)> = lines.iter().flat_map(pts).collect();
@@ -144,9 +141,7 @@ where
             ..Default::default()
         });
     }
-    super::figure(root, &fig)?;
-    root.present()?;
-    Ok(())
+    fig
 }
 
 #[cfg(test)]
@@ -170,11 +165,7 @@ mod tests {
     fn svg_convergence_has_lines() {
         let h = [0.1, 0.05, 0.025, 0.0125];
         let e: Vec<f64> = h.iter().map(|h: &f64| 3.0 * h.powi(4)).collect();
-        let mut svg = String::new();
-        {
-            let root = SVGBackend::with_string(&mut svg, (480, 360)).into_drawing_area();
-            convergence(&root, &[ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }]).unwrap();
-        }
+        let svg = super::super::figure_svg(&convergence(&[ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }]), 480, 360).unwrap();
         assert!(svg.contains("<polyline") && svg.contains("y(1), RK4"));
     }
 }
@@ -194,12 +185,8 @@ mod look {
         let h = [0.1, 0.05, 0.025, 0.0125];
         let e: Vec<f64> = h.iter().map(|h: &f64| 3.0 * h.powi(4)).collect();
         let e2: Vec<f64> = h.iter().map(|h: &f64| 0.3 * h.powi(1)).collect();
-        let mut svg = String::new();
-        {
-            let root = SVGBackend::with_string(&mut svg, (480, 360)).into_drawing_area();
-            convergence(&root, &[ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }, ErrorLine { label: "y(1), Euler", h: &h, error: &e2, order: Some(1.0) }]).unwrap();
-        }
-        std::fs::write("/tmp/st/conv.svg", svg).unwrap();
+        let lines = [ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }, ErrorLine { label: "y(1), Euler", h: &h, error: &e2, order: Some(1.0) }];
+        std::fs::write("/tmp/st/conv.svg", super::super::figure_svg(&convergence(&lines), 480, 360).unwrap()).unwrap();
         let be = StabilityFunction::theta(1.0);
         let mut svg = String::new();
         {
