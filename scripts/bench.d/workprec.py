@@ -1,12 +1,35 @@
-"""Work-precision helpers shared by the bench parts (imported, not run: the
-file is not executable, so scripts/bench skips it).
+"""Work-precision helpers shared by the bench parts (imported, or run by
+them for `fastest`; the file is not executable, so scripts/bench skips it).
 
 A side's ladder is its runs of one method on one problem over a range of
 tolerances. Costs are compared at equal achieved error: the peer's cost at our
 error is interpolated log-log along its ladder. An error outside the peer's
 ladder gives a bound, not a measurement."""
 
+import json
+import sys
+
 import numpy as np
+
+
+def fastest(paths):
+    """The rows of several runs of the same wasm cases (JSON arrays, one per
+    Node process, in the same order), each with its fastest `seconds`. A Node
+    process settles into a fast or a slow mode for the same module (measured:
+    0.22 or 0.33 ms for one stiff case, build after build), so each case is
+    timed in several processes, as each side times each case in several
+    passes."""
+    runs = [json.load(open(p)) for p in paths]
+    rows = runs[0]
+    for other in runs[1:]:
+        for row, again in zip(rows, other):
+            row["seconds"] = min(row["seconds"], again["seconds"])
+    return rows
+
+
+if __name__ == "__main__":
+    # python3 workprec.py A.json B.json ...: the merged rows on stdout.
+    print(json.dumps(fastest(sys.argv[1:])))
 
 
 def _points(ladder, cost):
