@@ -749,7 +749,7 @@ impl SvgStrokes {
 
     /// `svg` with the marker replaced by the strokes.
     fn splice(self, svg: String) -> String {
-        let fill = format!(r##"fill="#{:02X}{:02X}{:02X}""##, ANCHOR.0, ANCHOR.1, ANCHOR.2);
+        let fill = format!(r#"fill="{}""#, hex(ANCHOR));
         let Some(at) = svg.find(&fill) else { return svg };
         let (Some(start), Some(len)) = (svg[..at].rfind('<'), svg[at..].find("/>")) else { return svg };
         let mut out = String::with_capacity(svg.len() + self.0.len());
@@ -758,6 +758,11 @@ impl SvgStrokes {
         out.push_str(svg[at + len + 2..].trim_start_matches('\n'));
         out
     }
+}
+
+/// A colour as plotters' SVG backend writes it, `#RRGGBB`.
+fn hex(c: RGBColor) -> String {
+    format!("#{:02X}{:02X}{:02X}", c.0, c.1, c.2)
 }
 
 /// `v` to two decimals, without trailing zeros.
@@ -774,7 +779,7 @@ impl Strokes for SvgStrokes {
     }
 
     fn curve(&mut self, points: &[(f64, f64)], c: RGBColor, width: u32, dashed: bool) {
-        self.polyline(points.iter().copied(), &format!("#{:02X}{:02X}{:02X}", c.0, c.1, c.2), width, dashed);
+        self.polyline(points.iter().copied(), &hex(c), width, dashed);
     }
 
     fn anchor(&self) -> bool {

@@ -2,7 +2,7 @@
 //! `h·λ` points of a run, and the log-log convergence plot of error against
 //! step size.
 
-use super::{DrawError, PALETTE};
+use super::DrawError;
 use crate::study::stability::{StabilityFunction, C64};
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -118,7 +118,7 @@ pub fn convergence(lines: &[ErrorLine]) -> super::Figure {
     };
     for (i, l) in lines.iter().enumerate() {
         let p = pts(l);
-        let colour = (i % PALETTE.len()) as i32;
+        let colour = i as i32;
         if let (Some(order), Some(&(hf, ef))) = (l.order, p.iter().min_by(|a, b| a.0.total_cmp(&b.0))) {
             // A straight line on log-log axes: its two ends (the figure clips it).
             let h_end = hx1 * 1.5;

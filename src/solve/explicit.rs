@@ -371,10 +371,9 @@ impl<const N: usize> Stepper for ExplicitStepper<N> {
 
     fn seed_slope(&mut self, f: &[f64]) {
         if f.len() == self.dim && f.iter().all(|v| v.is_finite()) {
+            self.restart();
             self.k[..self.dim].copy_from_slice(f);
             self.first_ready = true;
-            self.accepted = false;
-            self.end = None;
         }
     }
 
