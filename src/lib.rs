@@ -7,6 +7,7 @@
 pub mod api;
 pub mod draw;
 pub mod emit;
+pub mod field;
 #[doc(hidden)]
 pub mod fuzzing;
 pub mod problem;

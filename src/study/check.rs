@@ -10,49 +10,13 @@
 //!   the observed order and the Richardson limit, and the distance from that
 //!   limit is the error estimate ([`super::convergence::Ladder`]).
 
-use serde::Serialize;
-
 use super::convergence::Ladder;
 use super::digits::{error_text, plain, trusted_digits, value_text, with_digits};
-use super::pitfalls::{self, Pitfall};
+use super::pitfalls::{self, Context};
+use super::report::{Pitfall, Severity};
+pub use super::report::{label, list, CrossCheck, Key, Kind, Method, Options, Quantity, Report, Stability};
 use crate::problem::Problem;
 use crate::solve::{self, Run, Settings, SolveError, Status};
-
-/// Which summary quantity a [`Quantity`] is.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub enum Kind {
-    /// A state or helper at the end of the run.
-    Final,
-    /// The time of an event crossing.
-    EventTime,
-    /// The largest value of a state or helper inside the run.
-    Peak,
-    /// When the peak is reached.
-    PeakTime,
-    /// The smallest value of a state or helper inside the run.
-    Trough,
-    /// When the trough is reached.
-    TroughTime,
-}
-
-impl Kind {
-    /// Whether the quantity is a time.
-    pub fn is_time(self) -> bool {
-        matches!(self, Kind::EventTime | Kind::PeakTime | Kind::TroughTime)
-    }
-}
-
-/// One quantity of a run's summary, as a key that matches it across runs.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Key {
-    /// What it is.
-    pub kind: Kind,
-    /// The state, helper or event name.
-    pub name: String,
-    /// For an event: which crossing (0 = first).
-    pub occurrence: usize,
-}
 
 /// The summary quantities of a run, by key. Extrema at the very start or end
 /// of the run are left out: they are the initial or final values, not peaks.
@@ -87,140 +51,6 @@ pub fn summary(problem: &dyn Problem, run: &Run) -> Vec<(Key, f64)> {
     out
 }
 
-/// One checked quantity of the report.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub struct Quantity {
-    /// What it is.
-    pub kind: Kind,
-    /// The state, helper or event name.
-    pub name: String,
-    /// For an event: which crossing (0 = first).
-    pub occurrence: usize,
-    /// The run's value.
-    pub value: f64,
-    /// The more accurate value of the check (the tight run, or the Richardson
-    /// limit of a fixed-step ladder); `None` when the check has no such quantity.
-    pub check: Option<f64>,
-    /// Estimated error of the run's value; `None` when it could not be estimated.
-    pub error: Option<f64>,
-    /// Significant digits of `value` that can be trusted.
-    pub digits: u32,
-    /// The value printed to its trusted digits (plus a guard digit).
-    pub shown: String,
-    /// The error printed with one digit, rounded up.
-    pub error_shown: String,
-    /// Whether the check disagrees with the run by more than its tolerance implies.
-    pub disagrees: bool,
-    /// Whether the value is zero to within the run's accuracy (tiny against
-    /// the size the quantity reaches over the run); its digit count means little.
-    pub negligible: bool,
-    /// The plain-words verdict on this quantity.
-    pub sentence: String,
-}
-
-/// How the check was done.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub struct Method {
-    /// Method id of the run.
-    pub id: String,
-    /// Its name.
-    pub name: String,
-    /// Its order.
-    pub order: u32,
-    /// Whether it is adaptive.
-    pub adaptive: bool,
-    /// Whether it is implicit.
-    pub implicit: bool,
-}
-
-/// Agreement between an explicit and an implicit method on the same problem.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub struct CrossCheck {
-    /// The explicit method's id.
-    pub explicit: String,
-    /// The implicit method's id.
-    pub implicit: String,
-    /// The relative tolerance both ran at.
-    pub rtol: f64,
-    /// Steps the explicit method took (`None` when its run failed).
-    pub explicit_steps: Option<u64>,
-    /// Steps the implicit method took (`None` when its run failed).
-    pub implicit_steps: Option<u64>,
-    /// Digits of agreement for each quantity both runs have, in summary order
-    /// (`(label, digits)`).
-    pub agreement: Vec<(String, u32)>,
-    /// The fewest digits of agreement over all quantities.
-    pub least: Option<u32>,
-    /// The verdict in words.
-    pub sentence: String,
-}
-
-/// The stability picture of a fixed-step run: where its `h·λ` lie against
-/// the method's region.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub struct Stability {
-    /// The method id whose region is drawn.
-    pub method: String,
-    /// The step.
-    pub h: f64,
-    /// `h·λ` for the eigenvalues at the sampled points, `(re, im)`.
-    pub points: Vec<(f64, f64)>,
-    /// The largest stable step over those eigenvalues (`None`: any step is).
-    pub largest_stable_step: Option<f64>,
-    /// The largest growth factor `|R(hλ)|` per step over the decaying modes.
-    pub worst_growth: f64,
-}
-
-/// Everything the accuracy check found.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-#[serde(rename_all = "camelCase")]
-pub struct Report {
-    /// The independent variable's name.
-    pub independent: String,
-    /// The run's method.
-    pub method: Method,
-    /// How the check was done, in words.
-    pub how: String,
-    /// The headline verdict.
-    pub verdict: String,
-    /// Whether something is badly wrong (a prominent warning is due).
-    pub alarm: bool,
-    /// Each summary quantity, checked.
-    pub quantities: Vec<Quantity>,
-    /// The explicit-versus-implicit check, when it was run.
-    pub cross: Option<CrossCheck>,
-    /// Pitfalls found, most serious first.
-    pub pitfalls: Vec<Pitfall>,
-    /// The run's own diagnostics that no pitfall covers, as `(level, message)`.
-    pub notes: Vec<(String, String)>,
-    /// The stability picture for a fixed-step run.
-    pub stability: Option<Stability>,
-    /// How the run ended: `finished`, `stopped` or `failed`.
-    pub status: String,
-    /// Right-hand-side evaluations spent by the check (all its runs).
-    pub work: u64,
-}
-
-/// Options of the check.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Options {
-    /// Significant digits the page shows for results (default 4). Results that
-    /// cannot be trusted to that many digits raise the "tolerance too loose" pitfall.
-    pub shown_digits: u32,
-    /// Run the explicit-versus-implicit cross check (default true).
-    pub cross_method: bool,
-}
-
-impl Default for Options {
-    fn default() -> Self {
-        Options { shown_digits: 4, cross_method: true }
-    }
-}
-
 /// The smallest rtol the check tightens to (the driver floors rtol at 1e-14).
 const RTOL_FLOOR: f64 = 1e-13;
 
@@ -228,19 +58,6 @@ const RTOL_FLOOR: f64 = 1e-13;
 /// errors of a well-posed problem usually stay within 10 to 100 times the
 /// local tolerance (common practice, no source).
 const DISAGREE_FACTOR: f64 = 100.0;
-
-/// A name for a quantity in a sentence.
-pub fn label(k: &Key) -> String {
-    let nth = |k: &Key| if k.occurrence == 0 { String::new() } else { format!(" (crossing {})", k.occurrence + 1) };
-    match k.kind {
-        Kind::Final => format!("`{}` at the end", k.name),
-        Kind::EventTime => format!("event `{}`{}", k.name, nth(k)),
-        Kind::Peak => format!("peak of `{}`", k.name),
-        Kind::PeakTime => format!("time of the peak of `{}`", k.name),
-        Kind::Trough => format!("low point of `{}`", k.name),
-        Kind::TroughTime => format!("time of the low point of `{}`", k.name),
-    }
-}
 
 /// The sentence for one quantity: "event `h < 1` at t = 412.38, good to
 /// about 4 digits (± 0.03)".
@@ -397,20 +214,6 @@ pub fn check(
             sentence: sentence(k, independent, *v, error, negligible.then_some(size)),
         });
     }
-    // Events that one run has and the other has not.
-    let mut pitfalls = Vec::new();
-    if let Some(first) = check_sums.first() {
-        let extra: Vec<&Key> =
-            first.iter().map(|(k, _)| k).filter(|k| k.kind == Kind::EventTime && !base.iter().any(|(b, _)| b == *k)).collect();
-        let lost: Vec<&Key> =
-            base.iter().map(|(k, _)| k).filter(|k| k.kind == Kind::EventTime && !first.iter().any(|(c, _)| c == *k)).collect();
-        if !extra.is_empty() || !lost.is_empty() {
-            pitfalls.push(pitfalls::event_mismatch(&extra, &lost, independent));
-        }
-    }
-    if status_word(&run.status) != checks.first().map_or("finished", |c| status_word(&c.status)) {
-        pitfalls.push(pitfalls::status_mismatch(&run.status, &checks[0].status));
-    }
     let cross = if opts.cross_method && !matches!(run.status, Status::Failed(_)) {
         let (c, w) = cross_check(problem, t0, y0, settings, &base)?;
         work += w;
@@ -418,16 +221,26 @@ pub fn check(
     } else {
         None
     };
-    let found = pitfalls::detect(problem, t0, y0, settings, info, &run, &quantities, cross.as_ref(), opts, independent);
+    let mut cx = Context {
+        problem,
+        t0,
+        y0,
+        settings,
+        info,
+        independent,
+        opts,
+        run: &run,
+        base: &base,
+        check: checks.first().zip(check_sums.first().map(Vec::as_slice)),
+        quantities: &quantities,
+        cross: cross.as_ref(),
+    };
+    let found = pitfalls::detect(&mut cx);
     work += found.work;
-    pitfalls.extend(found.pitfalls);
+    let mut pitfalls = found.pitfalls;
     let stability = found.stability;
-    let alarm = !alarm_reasons.is_empty() || pitfalls.iter().any(|p| p.level == "alarm");
-    pitfalls.sort_by_key(|p| match p.level.as_str() {
-        "alarm" => 0,
-        "warning" => 1,
-        _ => 2,
-    });
+    let alarm = !alarm_reasons.is_empty() || pitfalls.iter().any(|p| p.level == Severity::Alarm);
+    pitfalls.sort_by_key(|p| p.level);
     let covered: Vec<&str> = pitfalls.iter().flat_map(|p| p.covers.iter().copied()).collect();
     let notes = run
         .diagnostics
@@ -464,7 +277,7 @@ fn magnitude(problem: &dyn Problem, run: &Run, name: &str) -> f64 {
 /// The headline verdict over all quantities.
 fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: &Status) -> String {
     if let Status::Failed(_) = status {
-        let why = pitfalls.iter().find(|p| p.level == "alarm").map_or(String::new(), |p| format!(" {}.", p.title));
+        let why = pitfalls.iter().find(|p| p.level == Severity::Alarm).map_or(String::new(), |p| format!(" {}.", p.title));
         return format!("The run did not reach its end: the results below cover only the part before the failure.{why}");
     }
     if !disagree.is_empty() {
@@ -473,7 +286,7 @@ fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: 
             list(disagree)
         );
     }
-    if let Some(p) = pitfalls.iter().find(|p| p.level == "alarm") {
+    if let Some(p) = pitfalls.iter().find(|p| p.level == Severity::Alarm) {
         return format!("Do not trust these results as they stand: {}.", p.title.to_lowercase());
     }
     let checked: Vec<&Quantity> = qs.iter().filter(|q| q.error.is_some() && !q.negligible).collect();
@@ -491,15 +304,6 @@ fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: 
         if weak.digits == 1 { "" } else { "s" },
         weak.sentence.split(" = ").next().unwrap_or("")
     )
-}
-
-/// `a`, `a and b`, `a, b and c`.
-pub fn list(items: &[String]) -> String {
-    match items.len() {
-        0 => String::new(),
-        1 => items[0].clone(),
-        n => format!("{} and {}", items[..n - 1].join(", "), items[n - 1]),
-    }
 }
 
 /// The explicit method of the cross check for a tolerance.

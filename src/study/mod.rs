@@ -7,7 +7,12 @@
 //! - [`convergence`]: observed order, Richardson extrapolation, the step for a
 //!   target accuracy;
 //! - [`digits`]: trusted significant digits and printing to them;
-//! - [`probe`]: Jacobian, spectrum, Lipschitz, blow-up and grazing probes.
+//! - [`probe`]: Jacobian, spectrum, Lipschitz, blow-up and grazing probes;
+//! - [`report`]: what an accuracy check reports, the vocabulary that
+//!   [`check`] and [`pitfalls`] share;
+//! - [`check`]: the accuracy check of one run;
+//! - [`pitfalls`]: one detector per pitfall, over one context;
+//! - [`sweep`]: the fixed-step convergence study.
 
 pub mod convergence;
 pub mod digits;
@@ -15,4 +20,5 @@ pub mod probe;
 pub mod stability;
 pub mod check;
 pub mod pitfalls;
+pub mod report;
 pub mod sweep;
