@@ -159,10 +159,17 @@ pub enum ModelErrorKind {
         /// The name.
         name: String,
     },
+    /// A derivative of order 0 (`d0x/dt0`), which is the state itself.
+    OrderZero {
+        /// The state.
+        state: String,
+        /// The independent variable written below it.
+        indep: String,
+    },
     /// A derivative of higher order than the language allows.
     OrderTooHigh {
-        /// The order written.
-        order: usize,
+        /// The order as written (all its digits, however many).
+        order: String,
         /// The highest allowed.
         limit: usize,
     },
@@ -301,6 +308,9 @@ impl ModelErrorKind {
             ReservedName { name } => {
                 format!("\"{name}\" is a built-in name and cannot be defined; choose another name")
             }
+            OrderZero { state, indep } => format!(
+                "a derivative of order 0 is \"{state}\" itself, not a rate; write \"d{state}/d{indep}\" for its rate, or \"d2{state}/d{indep}2\" for its second derivative"
+            ),
             OrderTooHigh { order, limit } => {
                 format!("a derivative of order {order} is too high; the highest allowed is {limit}")
             }

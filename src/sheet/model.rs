@@ -1,6 +1,7 @@
 //! A compiled sheet: the [`Model`] the solvers run.
 
-use super::analyze::Sheet;
+use super::analyze::{Rate, Sheet};
+use super::scan::Expr;
 use super::dag::Id;
 use super::ir::{Op, Program};
 use super::lower::{lower, Lowered};
@@ -391,15 +392,54 @@ impl Problem for Model {
         let p = &self.all;
         let s = p.slots();
         let out = p.outputs();
-        // The first helper in evaluation order, then the first rate.
+        // The first helper in evaluation order, then the first rate, with its formula.
         let named = self
             .low
             .helper_order
             .iter()
-            .map(|&h| (self.low.helper_names[h].clone(), out[dim + h]))
-            .chain(self.sheet.states.iter().enumerate().map(|(i, st)| (rate_name(&st.name, &self.sheet.indep), out[i])))
-            .find(|(_, slot)| !s[*slot as usize].is_finite())?;
+            .map(|&h| {
+                let name = &self.low.helper_names[h];
+                (name.clone(), out[dim + h], self.sheet.defs.iter().find(|d| d.name == *name).map(|d| &d.expr))
+            })
+            .chain(self.sheet.states.iter().enumerate().map(|(i, st)| {
+                let expr = match &st.rate {
+                    Rate::Expr(e) => Some(e),
+                    Rate::Next(_) => None,
+                };
+                (rate_name(&st.name, &self.sheet.indep), out[i], expr)
+            }))
+            .find(|(_, slot, _)| !s[*slot as usize].is_finite())?;
+        // A parameter with no finite value is named with its line: folded
+        // into the formula, it would look like an overflow there.
+        if let Some(prm) = named.2.and_then(|e| self.bad_param_in(e)) {
+            let what = if prm.value.is_nan() { "not a number (NaN, as 0/0 gives)" } else { "infinite (as 1/0 gives)" };
+            return Some(NonFiniteCause { name: named.0, what: format!("the parameter `{}` of line {} is {what}", prm.name, prm.line) });
+        }
         Some(NonFiniteCause { name: named.0, what: first_cause(p, named.1 as usize) })
+    }
+}
+
+impl Model {
+    /// The first parameter with no finite value that `expr` uses, directly
+    /// or through other definitions.
+    fn bad_param_in(&self, expr: &Expr) -> Option<&Param> {
+        let mut seen: Vec<&str> = Vec::new();
+        let mut todo = vec![expr];
+        while let Some(e) = todo.pop() {
+            for n in &e.names {
+                if seen.contains(&n.name.as_str()) {
+                    continue;
+                }
+                seen.push(&n.name);
+                if let Some(p) = self.params.iter().find(|p| p.name == n.name && !p.value.is_finite()) {
+                    return Some(p);
+                }
+                if let Some(d) = self.sheet.defs.iter().find(|d| d.name == n.name) {
+                    todo.push(&d.expr);
+                }
+            }
+        }
+        None
     }
 }
 

@@ -305,7 +305,7 @@ fn parse_stmt(code: &str, line: usize) -> Result<Stmt, ModelError> {
             return Ok(Stmt::Def { name, col: lcol, expr: value()? });
         }
         if primes > MAX_ORDER {
-            return Err(err(line, lcol, K::OrderTooHigh { order: primes, limit: MAX_ORDER }));
+            return Err(err(line, lcol, K::OrderTooHigh { order: primes.to_string(), limit: MAX_ORDER }));
         }
         return Ok(Stmt::Rate { state: ident.to_string(), col: lcol, order: primes, indep: None, expr: value()? });
     }
@@ -335,7 +335,9 @@ fn parse_d_form(lhs: &str, lcol: usize, line: usize, rhs: &str, rcol: usize) -> 
     let (den, den_col) = trim_at(&lhs[slash + 1..], lcol + slash + 1);
     let nb = num.as_bytes();
     let digits = nb[1..].iter().take_while(|b| b.is_ascii_digit()).count();
-    let order: usize = if digits == 0 { 1 } else { num[1..1 + digits].parse().unwrap_or(usize::MAX) };
+    // The order as written; a number too long for `usize` is too high all the same.
+    let written = if digits == 0 { "1" } else { &num[1..1 + digits] };
+    let order: usize = written.parse().unwrap_or(usize::MAX);
     let state = &num[1 + digits..];
     if state.is_empty() || !is_ident_start(state.as_bytes()[0]) || !state.bytes().all(is_ident) {
         return Err(bad());
@@ -347,15 +349,18 @@ fn parse_d_form(lhs: &str, lcol: usize, line: usize, rhs: &str, rcol: usize) -> 
         match t.strip_suffix(&num[1..1 + digits]) {
             Some(t) => t,
             None => {
-                return Err(syntax(line, den_col, format!("the order is written on both sides, as in \"d{order}{state}/dt{order}\"")))
+                return Err(syntax(line, den_col, format!("the order is written on both sides, as in \"d{written}{state}/dt{written}\"")))
             }
         }
     };
     if t.is_empty() || !is_ident_start(t.as_bytes()[0]) || !t.bytes().all(is_ident) {
         return Err(bad());
     }
-    if order == 0 || order > MAX_ORDER {
-        return Err(err(line, lcol, K::OrderTooHigh { order, limit: MAX_ORDER }));
+    if order == 0 {
+        return Err(err(line, lcol, K::OrderZero { state: state.to_string(), indep: t.to_string() }));
+    }
+    if order > MAX_ORDER {
+        return Err(err(line, lcol, K::OrderTooHigh { order: written.trim_start_matches('0').to_string(), limit: MAX_ORDER }));
     }
     if is_reserved(state) {
         return Err(err(line, lcol + 1 + digits, K::ReservedName { name: state.to_string() }));

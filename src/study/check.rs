@@ -59,11 +59,20 @@ const RTOL_FLOOR: f64 = 1e-13;
 /// local tolerance (common practice, no source).
 const DISAGREE_FACTOR: f64 = 100.0;
 
+/// How a quantity's sentence begins: "event `h < 1` at t = ", "`h` at the end = ".
+fn lead(k: &Key, independent: &str) -> String {
+    let what = label(k);
+    if k.kind == Kind::EventTime {
+        format!("{what} at {independent} = ")
+    } else {
+        format!("{what} = ")
+    }
+}
+
 /// The sentence for one quantity: "event `h < 1` at t = 412.38, good to
 /// about 4 digits (± 0.03)".
 pub fn sentence(k: &Key, independent: &str, value: f64, error: Option<f64>, negligible: Option<f64>) -> String {
-    let what = label(k);
-    let lead = if k.kind == Kind::EventTime { format!("{what} at {independent} = ") } else { format!("{what} = ") };
+    let lead = lead(k, independent);
     match error {
         None => format!("{lead}{}: its accuracy could not be checked", with_digits(value, 6)),
         Some(e) if negligible.is_some() => format!(
@@ -142,9 +151,24 @@ pub fn check(
             checks.push(r);
         }
     } else {
-        let tight = |f: f64| solve::Tolerance { rtol: (settings.tol.rtol / f).max(RTOL_FLOOR), atol: settings.tol.atol / f };
+        // Tolerances that ask for no digit are held to ones that do before
+        // tightening (the `tolerance-dwarfs-values` pitfall names them).
+        let start = pitfalls::sane(settings.tol, pitfalls::value_scale(&run, y0));
+        let tight = |f: f64| solve::Tolerance { rtol: (start.rtol / f).max(RTOL_FLOOR), atol: start.atol / f };
         let tol = tight(100.0);
-        let mut text = format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.rtol), plain(tol.atol));
+        let mut text = if start == settings.tol {
+            format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.rtol), plain(tol.atol))
+        } else {
+            format!(
+                "re-solved at rtol {}, atol {}: 100 times tighter than rtol {}, atol {}, which ask for digits where the run's (rtol {}, atol {}) do not",
+                plain(tol.rtol),
+                plain(tol.atol),
+                plain(start.rtol),
+                plain(start.atol),
+                plain(settings.tol.rtol),
+                plain(settings.tol.atol)
+            )
+        };
         let r = solve::solve(problem, t0, y0, &Settings { tol, max_steps: settings.max_steps.saturating_mul(4), ..base_settings.clone() })?;
         work += r.stats.rhs_evals;
         // When the tighter run barely moved any quantity (far less than the
@@ -152,7 +176,7 @@ pub fn check(
         // than the tolerance; a second, 10 000 times tighter run settles it.
         let first = summary(problem, &r);
         let still = base.iter().any(|(k, v)| {
-            first.iter().find(|(c, _)| c == k).is_some_and(|(_, c)| (v - c).abs() < 0.01 * implied(&settings.tol, k, *v, span))
+            first.iter().find(|(c, _)| c == k).is_some_and(|(_, c)| (v - c).abs() < 0.01 * implied(&start, k, *v, span))
         });
         let far = tight(1e4);
         if still && far.rtol < tol.rtol {
@@ -221,6 +245,19 @@ pub fn check(
     } else {
         None
     };
+    // Two methods at the run's settings that do not agree on a value even to
+    // one digit leave none of its digits standing, whatever the tighter run says.
+    let unsettled: Vec<String> = cross.iter().flat_map(|c| &c.agreement).filter(|a| a.1 == 0).map(|a| a.0.clone()).collect();
+    for ((k, v), q) in base.iter().zip(&mut quantities) {
+        if q.digits > 0 && unsettled.contains(&label(k)) {
+            q.digits = 0;
+            q.sentence = format!(
+                "{}{}, not even its first digit can be trusted: an explicit and an implicit method at the run's settings disagree on it",
+                lead(k, independent),
+                with_digits(*v, 3)
+            );
+        }
+    }
     let mut cx = Context {
         problem,
         t0,
@@ -239,7 +276,7 @@ pub fn check(
     work += found.work;
     let mut pitfalls = found.pitfalls;
     let stability = found.stability;
-    let alarm = !alarm_reasons.is_empty() || pitfalls.iter().any(|p| p.level == Severity::Alarm);
+    let alarm = !alarm_reasons.is_empty() || !unsettled.is_empty() || pitfalls.iter().any(|p| p.level == Severity::Alarm);
     pitfalls.sort_by_key(|p| p.level);
     let covered: Vec<&str> = pitfalls.iter().flat_map(|p| p.covers.iter().copied()).collect();
     let notes = run
@@ -248,7 +285,7 @@ pub fn check(
         .filter(|d| !covered.contains(&d.code))
         .map(|d| (format!("{:?}", d.level).to_lowercase(), d.message.clone()))
         .collect();
-    let verdict = headline(&quantities, &alarm_reasons, &pitfalls, &run.status);
+    let verdict = headline(&quantities, &alarm_reasons, &unsettled, &pitfalls, &run.status);
     Ok(Report {
         independent: independent.to_string(),
         method: Method { id: info.id.into(), name: info.name.into(), order: info.order, adaptive: !fixed, implicit: info.implicit },
@@ -275,7 +312,7 @@ fn magnitude(problem: &dyn Problem, run: &Run, name: &str) -> f64 {
 }
 
 /// The headline verdict over all quantities.
-fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: &Status) -> String {
+fn headline(qs: &[Quantity], disagree: &[String], unsettled: &[String], pitfalls: &[Pitfall], status: &Status) -> String {
     if let Status::Failed(_) = status {
         let why = pitfalls.iter().find(|p| p.level == Severity::Alarm).map_or(String::new(), |p| format!(" {}.", p.title));
         return format!("The run did not reach its end: the results below cover only the part before the failure.{why}");
@@ -288,6 +325,12 @@ fn headline(qs: &[Quantity], disagree: &[String], pitfalls: &[Pitfall], status: 
     }
     if let Some(p) = pitfalls.iter().find(|p| p.level == Severity::Alarm) {
         return format!("Do not trust these results as they stand: {}.", p.title.to_lowercase());
+    }
+    if !unsettled.is_empty() {
+        return format!(
+            "Do not trust these results as they stand: an explicit and an implicit method at the run's settings do not agree even to one digit on {}.",
+            list(unsettled)
+        );
     }
     let checked: Vec<&Quantity> = qs.iter().filter(|q| q.error.is_some() && !q.negligible).collect();
     let Some(weak) = checked.iter().min_by_key(|q| q.digits) else {

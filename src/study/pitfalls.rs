@@ -16,7 +16,7 @@ pub use super::report::{Pitfall, Severity};
 use super::report::{label, list, CrossCheck, Key, Options, Quantity, Stability};
 use super::stability::{StabilityFunction, C64};
 use crate::problem::Problem;
-use crate::solve::{Diagnostic, MethodInfo, Run, Settings, SolveError, Status};
+use crate::solve::{Diagnostic, MethodInfo, Run, Settings, SolveError, Status, Tolerance};
 
 fn pit(code: &'static str, level: Severity, title: &str, message: String, number: Option<f64>, t: Option<f64>) -> Pitfall {
     Pitfall { code, level, title: title.into(), message, number, t, covers: Vec::new() }
@@ -126,6 +126,7 @@ fn sample_indices(len: usize, n: usize) -> Vec<usize> {
 /// Look for every pitfall in the run of `cx` (and its check and cross check).
 pub fn detect(cx: &mut Context) -> Found {
     let mut out = Vec::new();
+    out.extend(tolerance_dwarfs_values(cx));
     out.extend(event_mismatch(cx));
     out.extend(status_mismatch(cx));
     out.extend(not_unique(cx));
@@ -135,11 +136,108 @@ pub fn detect(cx: &mut Context) -> Found {
     out.extend(unstable);
     out.extend(stiff(cx));
     let failed = matches!(cx.run.status, Status::Failed(_));
-    if !failed && !out.iter().any(|p| p.code == "unstable-step") {
+    if !failed && !out.iter().any(|p| p.code == "unstable-step" || p.code == "tolerance-dwarfs-values") {
         out.extend(loose_tolerance(cx));
     }
     out.extend(grazed(cx));
     Found { pitfalls: out, stability, work: 0 }
+}
+
+/// The loosest tolerances that still ask for a correct digit: rtol, and atol
+/// as a fraction of the largest value the states reach. Looser ones raise
+/// [`tolerance_dwarfs_values`], and the check starts from the defaults in
+/// their place (common practice, no source: a tolerance of a tenth of the
+/// value asks for about one digit).
+pub const SANE_FRACTION: f64 = 0.1;
+
+/// The largest magnitude any state reaches over `run` or at its start `y0`
+/// (0 when every state stays 0).
+pub fn value_scale(run: &Run, y0: &[f64]) -> f64 {
+    run.states.iter().flatten().chain(y0).filter(|v| v.is_finite()).fold(0.0, |m, v| m.max(v.abs()))
+}
+
+/// `tol` with each tolerance that asks for no digit (rtol above
+/// [`SANE_FRACTION`], atol above that fraction of `scale`, the values' size)
+/// replaced by its default.
+pub fn sane(tol: Tolerance, scale: f64) -> Tolerance {
+    let d = Tolerance::default();
+    Tolerance {
+        rtol: if tol.rtol > SANE_FRACTION { d.rtol } else { tol.rtol },
+        atol: if scale > 0.0 && tol.atol > SANE_FRACTION * scale { d.atol } else { tol.atol },
+    }
+}
+
+/// A tolerance as it would be typed: `1e9`, `1e-9`, `0.05`.
+fn typed(x: f64) -> String {
+    if (1e-3..1e4).contains(&x.abs()) {
+        plain(x)
+    } else {
+        format!("{x:e}")
+    }
+}
+
+/// Tolerances so loose against the solution's values that they ask for no
+/// correct digit: a typo such as atol `1e9` for `1e-9`. The solver then takes
+/// the largest steps it may, and whatever it returns passes its own test.
+pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
+    if cx.fixed() {
+        return None;
+    }
+    let tol = cx.settings.tol;
+    let scale = value_scale(cx.run, cx.y0);
+    let held = sane(tol, scale);
+    if held == tol {
+        return None;
+    }
+    let (r, a) = (held.rtol != tol.rtol, held.atol != tol.atol);
+    let what = match (r, a) {
+        (true, true) => format!("rtol {} and atol {} allow", typed(tol.rtol), typed(tol.atol)),
+        (true, false) => format!("rtol {} allows", typed(tol.rtol)),
+        _ => format!("atol {} allows", typed(tol.atol)),
+    };
+    let allowed = tol.rtol * scale + tol.atol;
+    // The least trusted final value, to show what the settings did.
+    let example = cx
+        .quantities
+        .iter()
+        .filter(|q| q.kind == super::report::Kind::Final && q.check.is_some())
+        .min_by_key(|q| q.digits)
+        .map_or(String::new(), |q| {
+            format!(
+                "; here `{}` at the end is {} in the run against {} in the check",
+                q.name,
+                with_digits(q.value, 5),
+                with_digits(q.check.unwrap_or(f64::NAN), 5)
+            )
+        });
+    let mut fix = Vec::new();
+    if r {
+        fix.push(format!("rtol to {} (the default) or tighter", typed(held.rtol)));
+    }
+    if a {
+        // A power of ten above 1 is most likely a lost minus sign.
+        let e = tol.atol.log10();
+        fix.push(if e >= 1.0 && e.fract() == 0.0 {
+            format!("atol to {}: {} looks like {} with its minus sign lost", typed(1.0 / tol.atol), typed(tol.atol), typed(1.0 / tol.atol))
+        } else {
+            format!("atol well below the smallest value that matters (the default is {})", typed(held.atol))
+        });
+    }
+    Some(pit(
+        "tolerance-dwarfs-values",
+        Severity::Alarm,
+        "The tolerances dwarf the solution's values",
+        format!(
+            "The run's {what} an error of {} in each step, while its values stay within {}: the settings ask for no correct digit, so the solver takes the largest steps it may and its results can be anything{example}. Set {}. The check below started from the default tolerances in their place (rtol {}, atol {}), whatever the run's.",
+            with_digits(allowed, 2),
+            with_digits(scale, 3),
+            fix.join(", and "),
+            typed(held.rtol),
+            typed(held.atol),
+        ),
+        (scale > 0.0).then(|| allowed / scale),
+        None,
+    ))
 }
 
 /// Events that fired in the run and not in the more accurate check, or the
