@@ -30,7 +30,10 @@ pub struct RunRequest {
     pub rtol: Option<f64>,
     /// Absolute tolerance for adaptive methods (default 1e-9).
     pub atol: Option<f64>,
-    /// Output times; without them every accepted step is reported.
+    /// Output times; without them every accepted step is reported. More
+    /// than [`solve::CEILING_OUTPUT`] are refused as the request is read,
+    /// before any of them is converted.
+    #[serde(deserialize_with = "bounded_times")]
     pub at: Option<Vec<f64>>,
     /// Step cap (default 1e6).
     pub max_steps: Option<f64>,
@@ -44,6 +47,52 @@ pub struct RunRequest {
     pub max_step: Option<f64>,
     /// Parameter values that replace the sheet's, by name (sliders, sweeps).
     pub params: Option<std::collections::BTreeMap<String, f64>>,
+}
+
+/// Read a list of output times, refusing more than the solver could ever
+/// keep from the length the list announces, before reading any of them (a
+/// list that announces none is cut off at the first time too many).
+fn bounded_times<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<Vec<f64>>, D::Error> {
+    use serde::de::{Error, SeqAccess, Visitor};
+    struct Times;
+    impl<'de> Visitor<'de> for Times {
+        type Value = Vec<f64>;
+        fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+            write!(f, "a list of at most {} output times", solve::CEILING_OUTPUT)
+        }
+        fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Vec<f64>, A::Error> {
+            let limit = solve::CEILING_OUTPUT;
+            let too_many = |n: String| A::Error::custom(format!("{n} output times asked for in `at`; at most {limit} can be kept"));
+            if let Some(n) = seq.size_hint().filter(|&n| n > limit) {
+                return Err(too_many(n.to_string()));
+            }
+            let mut out = Vec::with_capacity(seq.size_hint().unwrap_or(0));
+            while let Some(x) = seq.next_element()? {
+                if out.len() == limit {
+                    return Err(too_many(format!("more than {limit}")));
+                }
+                out.push(x);
+            }
+            Ok(out)
+        }
+    }
+    struct Maybe;
+    impl<'de> Visitor<'de> for Maybe {
+        type Value = Option<Vec<f64>>;
+        fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+            write!(f, "a list of output times, or nothing")
+        }
+        fn visit_none<E: Error>(self) -> Result<Self::Value, E> {
+            Ok(None)
+        }
+        fn visit_unit<E: Error>(self) -> Result<Self::Value, E> {
+            Ok(None)
+        }
+        fn visit_some<D2: serde::Deserializer<'de>>(self, d: D2) -> Result<Self::Value, D2::Error> {
+            d.deserialize_seq(Times).map(Some)
+        }
+    }
+    d.deserialize_option(Maybe)
 }
 
 /// Values keyed by name, in model order (a JS object).
@@ -77,12 +126,13 @@ pub struct EventReport {
 pub struct ExtremumReport {
     /// State or helper name.
     pub name: String,
-    /// Largest value.
-    pub max: f64,
-    /// When it was reached.
+    /// Largest value; `None` (null) when it overflowed to +∞ (a diagnostic
+    /// `overflow` says where).
+    pub max: Option<f64>,
+    /// When it was reached (for an overflow: when it first overflowed).
     pub t_max: f64,
-    /// Smallest value.
-    pub min: f64,
+    /// Smallest value; `None` (null) when it overflowed to −∞.
+    pub min: Option<f64>,
     /// When it was reached.
     pub t_min: f64,
 }
@@ -124,6 +174,10 @@ pub struct RunReport {
     pub diagnostics: Vec<DiagnosticReport>,
     /// `finished`, `stopped` or `failed`.
     pub status: &'static str,
+    /// How far a run that did not finish got: the time of its stop event,
+    /// or where it failed (which may lie past the last output time); `None`
+    /// when it finished (it reached its end).
+    pub reached: Option<f64>,
     /// Why the run failed, when it did (also the last diagnostic).
     pub error: Option<String>,
     /// Work counters.
@@ -228,21 +282,28 @@ pub fn report(m: &Model, method: &str, run: Run) -> RunReport {
     let names: Vec<String> = states.iter().chain(&helpers).cloned().collect();
     let named = |v: Vec<f64>, w: Vec<f64>| Named(names.iter().cloned().zip(v.into_iter().chain(w)).collect());
     let values = Named(names.iter().cloned().zip(run.states.into_iter().chain(run.helpers)).collect());
+    let stop_t = run.events.last().map(|e| e.t);
     let events = run.events.into_iter().map(|e| EventReport { name: e.name, t: e.t, values: named(e.states, e.helpers) }).collect();
-    let extrema = run
-        .extrema
-        .into_iter()
-        .map(|x| ExtremumReport { name: x.name, max: x.max, t_max: x.t_max, min: x.min, t_min: x.t_min })
-        .collect();
-    let diagnostics = run
+    let mut diagnostics: Vec<DiagnosticReport> = run
         .diagnostics
         .into_iter()
         .map(|d| DiagnosticReport { level: d.level, code: d.code, message: d.message, t: d.t })
         .collect();
-    let (status, error) = match &run.status {
-        Status::Finished => ("finished", None),
-        Status::Stopped { .. } => ("stopped", None),
-        Status::Failed(e) => ("failed", Some(e.to_string())),
+    let extrema = run
+        .extrema
+        .into_iter()
+        .map(|x| {
+            for (v, t) in [(x.max, x.t_max), (x.min, x.t_min)].into_iter().filter(|(v, _)| v.is_infinite()) {
+                diagnostics.push(overflowed(&x.name, v, t, m.independent()));
+            }
+            let finite = |v: f64| v.is_finite().then_some(v);
+            ExtremumReport { name: x.name, max: finite(x.max), t_max: x.t_max, min: finite(x.min), t_min: x.t_min }
+        })
+        .collect();
+    let (status, error, reached) = match &run.status {
+        Status::Finished => ("finished", None, None),
+        Status::Stopped { .. } => ("stopped", None, stop_t),
+        Status::Failed(e) => ("failed", Some(e.to_string()), e.time()),
     };
     RunReport {
         independent: m.independent().to_string(),
@@ -255,7 +316,26 @@ pub fn report(m: &Model, method: &str, run: Run) -> RunReport {
         extrema,
         diagnostics,
         status,
+        reached,
         error,
         stats: run.stats,
+    }
+}
+
+/// The note for a state or helper that grew past the largest double.
+fn overflowed(name: &str, v: f64, t: f64, independent: &str) -> DiagnosticReport {
+    let (past, inf, which) = if v > 0.0 {
+        ("grows past the largest number a double can hold (about 1.8e308)", "+∞", "highest")
+    } else {
+        ("falls below the most negative number a double can hold (about −1.8e308)", "−∞", "lowest")
+    };
+    DiagnosticReport {
+        level: Level::Warning,
+        code: "overflow",
+        message: format!(
+            "`{name}` {past} from {independent} = {} on: its values there are {inf}, so it has no {which} value to show. Rescale it (other units, or its logarithm), or end the run before",
+            solve::num(t)
+        ),
+        t: Some(t),
     }
 }

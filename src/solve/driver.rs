@@ -34,7 +34,8 @@ const HUGE: f64 = 1e150;
 /// output points, stored output values (points × (states + helpers)), and
 /// recorded event crossings.
 const CEILING_STEPS: u64 = 100_000_000;
-const CEILING_OUTPUT: usize = 1_000_000;
+/// Most output points a run keeps, whatever the settings ask for.
+pub const CEILING_OUTPUT: usize = 1_000_000;
 const CEILING_VALUES: usize = 10_000_000;
 const CEILING_EVENTS: usize = 1_000_000;
 
@@ -378,6 +379,7 @@ impl<'a> Driver<'a> {
             for (s, g) in self.g_sign.iter_mut().zip(&self.g_now) {
                 *s = (*g != 0.0).then(|| sign(*g));
             }
+            self.note_stops_true_at_start(t);
         }
         if self.n_switches > 0 {
             self.problem.switch_values(t, &y, &mut self.s_now);
@@ -385,8 +387,31 @@ impl<'a> Driver<'a> {
         self.norms.push(self.y0_norm);
     }
 
+    /// A `stop when` whose condition already holds at the start can never
+    /// become true, so it never ends the run: say so.
+    fn note_stops_true_at_start(&mut self, t: f64) {
+        for (ev, g) in self.problem.events().iter().zip(&self.g_now) {
+            let holds = match ev.crossing {
+                Crossing::Falling => *g < 0.0,
+                Crossing::Rising => *g > 0.0,
+                Crossing::Either => *g == 0.0,
+            };
+            if ev.action == EventAction::Stop && holds {
+                self.diagnostics.push(Diagnostic {
+                    level: Level::Warning,
+                    code: "stop-true-at-start",
+                    message: format!(
+                        "`stop when {}` already holds at the start, so it never ends the run: a stop fires when its condition becomes true. Start where it does not hold yet, or turn the comparison round if the run should end when it stops holding",
+                        ev.name
+                    ),
+                    t: Some(t),
+                });
+            }
+        }
+    }
+
     fn fail(&mut self, e: SolveError) {
-        self.diagnostics.push(Diagnostic { level: Level::Error, code: e.code(), message: e.to_string(), t: failure_time(&e) });
+        self.diagnostics.push(Diagnostic { level: Level::Error, code: e.code(), message: e.to_string(), t: e.time() });
         self.status = Some(Status::Failed(e));
     }
 
@@ -615,7 +640,8 @@ impl<'a> Driver<'a> {
             if self.norms.len() > 64 {
                 self.norms.drain(..32);
             }
-            if norm > HUGE {
+            // Only growth counts: a solution that starts huge and stays so is no blow-up.
+            if norm > HUGE && self.growing() {
                 self.fail(SolveError::BlowUp { t: self.t, magnitude: norm });
                 break;
             }
@@ -1217,16 +1243,6 @@ fn fires(c: Crossing, rising: bool) -> bool {
     }
 }
 
-fn failure_time(e: &SolveError) -> Option<f64> {
-    match e {
-        SolveError::InvalidSettings { .. } => None,
-        SolveError::NonFinite { t, .. }
-        | SolveError::BlowUp { t, .. }
-        | SolveError::StepSizeTooSmall { t, .. }
-        | SolveError::MaxSteps { t, .. }
-        | SolveError::StepFailed { t, .. } => Some(*t),
-    }
-}
 
 /// Order `k` of a method's error estimate, for the controller.
 fn error_order(m: &MethodInfo) -> u32 {

@@ -50,7 +50,7 @@ pub mod stability;
 pub mod stepper;
 pub mod tableau;
 
-pub use driver::solve;
+pub use driver::{solve, CEILING_OUTPUT};
 pub use methods::{method, methods, MethodInfo};
 pub use stepper::{Stats, Tolerance};
 
@@ -270,6 +270,18 @@ pub enum SolveError {
 }
 
 impl SolveError {
+    /// Where in the run it happened (`None` for invalid settings).
+    pub fn time(&self) -> Option<f64> {
+        match self {
+            SolveError::InvalidSettings { .. } => None,
+            SolveError::NonFinite { t, .. }
+            | SolveError::BlowUp { t, .. }
+            | SolveError::StepSizeTooSmall { t, .. }
+            | SolveError::MaxSteps { t, .. }
+            | SolveError::StepFailed { t, .. } => Some(*t),
+        }
+    }
+
     /// The stable diagnostic code of this error.
     pub fn code(&self) -> &'static str {
         match self {
