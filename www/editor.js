@@ -250,10 +250,14 @@ export function insertIntoSheet(text, { asLines = false } = {}) {
   if (s.readOnly) return;
   let at = s.selectionStart, end = s.selectionEnd;
   if (asLines) {
-    const lineEnd = s.value.indexOf("\n", s.selectionEnd);
-    at = end = lineEnd < 0 ? s.value.length : lineEnd;
+    const v = s.value;
+    const lineStart = v.lastIndexOf("\n", at - 1) + 1;
+    const found = v.indexOf("\n", end);
+    const lineEnd = found < 0 ? v.length : found;
     const body = text.replace(/\n$/, "");
-    text = at === 0 && !s.value ? `${body}\n` : `${at > 0 ? "\n" : ""}${body}${lineEnd < 0 ? "\n" : ""}`;
+    const blank = !v.slice(lineStart, lineEnd).trim();
+    at = end = blank ? lineStart : lineEnd;
+    text = `${blank ? "" : "\n"}${body}${found < 0 ? "\n" : ""}`;
   }
   s.focus();
   s.setRangeText(text, at, end, "end");
