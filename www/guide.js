@@ -164,7 +164,7 @@ export const GUIDE_ENTRIES = [
     id: "switches", part: "Events and switches", title: "Switches",
     text: [
       "Where a rate is not smooth, the solver ends a step exactly where it changes, so a jump in a rate costs no accuracy. No statement is needed: the formula brings its switches with it.",
-      "The switches are: the zero of `x` in `abs`, `sign`, `signum` and `heaviside`; where the arguments of `min` and `max` cross; `lo` and `hi` of `clamp`; every whole number for `floor` and `ceil`, every half for `round`; and wherever `a/b` is a whole number for `a % b`.",
+      "The switches are: the zero of `x` in `abs`, `sign`, `signum` and `step`; where the arguments of `min` and `max` cross; `lo` and `hi` of `clamp`; every whole number for `floor` and `ceil`, every half for `round`; and wherever `a/b` is a whole number for `a % b`.",
     ],
     example: "# Glasshouse heater on for the first 3 hours; t in hours, T in deg C\nP = 4*step(3 - t)        # kW\nT' = 0.6*P - 0.25*(T - 5)\nT(0) = 5\n",
   },

@@ -77,6 +77,20 @@ test("the guide's entries are one each, with the fields the panel shows", () => 
   }
 });
 
+test("a name the guide's text writes as code is one the sheet language knows, or one of its example", () => {
+  // Catches a renamed function left behind in the prose.
+  const placeholders = new Set(["x", "y", "a", "b", "lo", "hi", "t", "s", "X", "T", "t0", "d", "_"]);
+  const known = new Set([...lang.functions.map((f) => f.name), ...lang.constants]);
+  for (const e of GUIDE_ENTRIES) {
+    const own = new Set((e.example ?? "").match(/[A-Za-z_]\w*/g) ?? []);
+    for (const t of e.text) {
+      for (const [, name] of t.matchAll(/`([A-Za-z_]\w*)`/g)) {
+        assert.ok(known.has(name) || placeholders.has(name) || own.has(name), `${e.id}: \`${name}\` is not a function, a constant or a name of its example`);
+      }
+    }
+  }
+});
+
 test("the guide states the limits the README promises", () => {
   const readme = readFileSync(new URL("../../README.md", import.meta.url), "utf8");
   const limits = GUIDE_ENTRIES.find((e) => e.id === "limits").text.join(" ");
