@@ -128,7 +128,7 @@ export const GUIDE_ENTRIES = [
     id: "names", part: "Expressions", title: "Numbers, names and constants", forms: ["12  0.5  1.5e-3", "pi  e"],
     text: [
       "Numbers are written with a digit before the point (`0.5`, not `.5`) and may have an exponent (`1.5e-3`). Numbers are double precision: about 16 significant digits, up to about 1.8e308.",
-      "Names are letters, digits and `_`, starting with a letter or `_`; capitals count (`T` and `t` differ). `x'` names the derivative of a state `x`. `pi` and `e` are the constants; they and the function names cannot be redefined.",
+      "Names are letters, digits and `_`, starting with a letter or `_`; capitals count (`T` and `t` differ). A higher derivative (`x'' = …`) makes `x'` the name of a state. `pi` and `e` are the constants; they and the function names cannot be redefined.",
     ],
     checks: [["pi", Math.PI], ["e", Math.E], ["1.5e-3", 0.0015]],
   },
@@ -148,7 +148,7 @@ export const GUIDE_ENTRIES = [
   {
     id: "stop", part: "Events and switches", title: "Stop when", forms: ["stop when a < b", "stop when a > b", "stop when a = b"],
     text: [
-      "Ends the run the first time the condition becomes true, at the time it does so, found between steps to full accuracy. The summary gives that time and the values then.",
+      "Ends the run the first time the condition becomes true, at the moment it does: the solver locates the crossing between its steps, not at the nearest output time. The summary gives that time and the values then.",
       "The comparisons are `<`, `<=`, `>`, `>=` and `=`. `<` fires when `a - b` falls through zero, `>` when it rises through zero, `=` either way. A condition already true at the start is no crossing, so it does not fire then.",
     ],
     example: "# Header tank filling until the float switch at 1.8 m\nQ = 0.004           # m^3/s pumped in\nA = 2.5             # m^2\nh' = Q/A\nh(0) = 0.3\nstop when h > 1.8\n",
@@ -188,7 +188,7 @@ export const GUIDE_ENTRIES = [
     text: [
       "\"All 5 results are good to at least 6 digits\" means each result has at least 6 significant digits that its error leaves standing; the least certain one is named.",
       "\"Do not trust these results as they stand\" means the check disagrees with the run by far more than its settings allow, or a pitfall raised an alarm. Tighten the tolerances or shorten the step, and look at the cautions.",
-      "In the table, value is printed to its trusted digits; error is the estimated size of the error (±); trusted digits counts the leading digits the error leaves standing (at most 15); ≈ 0 means zero to within the run's accuracy; unknown means the result could not be checked, for example an event the check did not find.",
+      "In the table, \"value\" is printed to its trusted digits; \"error\" is the estimated size of its error (±); \"trusted digits\" counts the leading digits the error leaves standing (at most 15), ≈ 0 meaning zero to within the run's accuracy; \"unknown\" means the result could not be checked, for example an event the check did not find; \"check value\" is the more accurate run's value.",
     ],
   },
   {
@@ -261,8 +261,10 @@ function functionRows() {
   return language().functions.map((f) => {
     const note = GUIDE_FUNCTIONS[f.name] ?? { call: `${f.name}(…)`, does: "", domain: "" };
     const arity = f.arity == null ? "one or more arguments" : `${f.arity} argument${f.arity === 1 ? "" : "s"}`;
-    const says = `${note.does}. ${note.domain}.${note.switch ? ` Switch ${note.switch}.` : ""}`;
-    return { name: f.name, call: note.call, arity, says, hay: `${f.name} ${note.call} ${says} ${arity}`.toLowerCase() };
+    // Not capitalised: the notes start with names (x, e), and capitals count in a sheet.
+    const lines = [`${note.does}.`, `${note.domain}.`];
+    if (note.switch) lines.push(`Switch ${note.switch}.`);
+    return { name: f.name, call: note.call, arity, lines, hay: `${f.name} ${note.call} ${lines.join(" ")} ${arity}`.toLowerCase() };
   });
 }
 
@@ -278,7 +280,7 @@ function renderEntry(e, terms) {
     if (!own && !rows.length) return null;
     table = el("table", { class: "guide-functions" }, ...rows.map((r) => el("tr", { "data-fn": r.name },
       el("td", {}, el("button", { type: "button", class: "guide-fn", "data-insert-fn": r.name, title: `Put ${r.name}( into the sheet at the caret (${r.arity})` }, ...guideMark(r.call, terms))),
-      el("td", {}, ...guideMark(r.says, terms)))));
+      el("td", {}, ...r.lines.flatMap((l, i) => [i ? el("br") : "", el("span", { class: i ? "muted" : null }, ...guideMark(l, terms))])))));
   } else if (!own) {
     return null;
   }
