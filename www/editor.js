@@ -48,7 +48,8 @@ function badRow(text, p) {
  */
 export function refreshEditor({ sameLines = false } = {}) {
   const lines = sheet().value.split("\n");
-  const byLine = new Map(problems.map((p) => [p.line, p]));
+  // An empty sheet shows its placeholder (how to start); the list below says it is empty.
+  const byLine = new Map(sheet().value ? problems.map((p) => [p.line, p]) : []);
   const gutter = $("gutter");
   const marks = $("marks");
   const g = document.createDocumentFragment();

@@ -54,6 +54,11 @@ test("the guide opens beside the editor, by button and by F1, and the sheet stay
   assert.equal(await page.isHidden("#guide"), true);
   assert.equal(await page.evaluate(() => document.activeElement.id), "sheet");
   assert.equal(await page.inputValue("#sheet"), FREEZER + "# still editable");
+  // An empty sheet says how to start and where the guide is, unmarked by the "empty" problem.
+  await setSheet(page, "");
+  assert.match(await page.getAttribute("#sheet", "placeholder"), /dx\/dt = -k\*x[\s\S]*Guide \(F1\)/);
+  assert.equal(await page.$$eval("#marks .mark.bad", (r) => r.length), 0);
+  assert.match(await page.textContent("#problem"), /empty/);
   // Every function of the solver is listed, in its order.
   await page.click("#guide-toggle");
   assert.deepEqual(await page.$$eval("#guide tr[data-fn]", (rows) => rows.map((r) => r.dataset.fn)), sheetLanguage().functions.map((f) => f.name));
