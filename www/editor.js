@@ -81,6 +81,7 @@ export function setProblems(list) {
     el("li", {}, p.line ? `Line ${p.line}, column ${p.column}: ${bareMessage(p.message)}` : p.message)));
   ul.hidden = list.length === 0;
   refreshEditor();
+  showTip(false);
 }
 
 /** Put the caret at a line and column (1-based). */
@@ -92,18 +93,18 @@ export function goTo(line, column) {
   pos += Math.max(0, (column || 1) - 1);
   s.focus();
   s.setSelectionRange(pos, pos);
+  caretProblem();
 }
 
 // ---- the problem's message on hover
 
-/** Show the message of the underlined problem while the pointer is over it. */
-function hoverProblem(e) {
+/** Show the message of the underlined problem under it; `over`: the pointer or the caret is on it. */
+function showTip(over) {
   const tip = $("sheet-tip");
   const mark = $("sheet-squiggle");
-  const r = mark?.getBoundingClientRect();
-  const over = r && e.clientX >= r.left - 1 && e.clientX <= r.right + 1 && e.clientY >= r.top - 1 && e.clientY <= r.bottom + 1;
-  const p = over && problems.find((q) => q.line && q.column);
+  const p = over && mark && problems.find((q) => q.line && q.column);
   if (!p) { tip.hidden = true; return; }
+  const r = mark.getBoundingClientRect();
   const box = tip.parentElement.getBoundingClientRect();
   tip.textContent = bareMessage(p.message);
   tip.hidden = false;
@@ -111,6 +112,23 @@ function hoverProblem(e) {
   const below = r.bottom - box.top + 2;
   tip.style.left = `${left}px`;
   tip.style.top = `${below + tip.offsetHeight > box.height ? Math.max(0, r.top - box.top - tip.offsetHeight - 2) : below}px`;
+}
+
+function hoverProblem(e) {
+  const r = $("sheet-squiggle")?.getBoundingClientRect();
+  showTip(r && e.clientX >= r.left - 1 && e.clientX <= r.right + 1 && e.clientY >= r.top - 1 && e.clientY <= r.bottom + 1);
+}
+
+/** The caret on the underlined stretch shows the message too (keyboard users). */
+function caretProblem() {
+  const s = sheet();
+  const p = problems.find((q) => q.line && q.column);
+  if (!p || pick.open || s.selectionStart !== s.selectionEnd || !s.value) { showTip(false); return; }
+  const before = s.value.slice(0, s.selectionStart);
+  const line = before.split("\n").length;
+  const col = s.selectionStart - (before.lastIndexOf("\n") + 1);
+  const [from, to] = problemSpan(s.value.split("\n")[line - 1] ?? "", p.column);
+  showTip(line === p.line && col >= from && col <= Math.max(to, from + 1));
 }
 
 // ---- completion of names
@@ -279,7 +297,8 @@ export function initEditor(onEdit) {
   s.addEventListener("blur", closeOffer);
   s.addEventListener("click", closeOffer);
   s.addEventListener("mousemove", hoverProblem);
-  s.addEventListener("mouseleave", () => { $("sheet-tip").hidden = true; });
+  s.addEventListener("mouseleave", () => showTip(false));
+  s.addEventListener("keyup", (e) => { if (!/^(Shift|Control|Alt|Meta)$/.test(e.key)) caretProblem(); });
   $("sheet-complete").addEventListener("mousedown", (e) => {
     const li = e.target.closest("li[data-name]");
     e.preventDefault();

@@ -197,6 +197,12 @@ test("a problem is underlined at its column, and its message shows on hover", as
   await page.screenshot({ path: join(SHOTS, "guide-hover.png") });
   await page.mouse.move(s.right + 200, s.bottom + 150);
   assert.equal(await page.isHidden("#sheet-tip"), true);
+  // From the keyboard: a click on the listed problem puts the caret there, which shows the message too.
+  await page.click("#problem li");
+  assert.equal(await page.evaluate(() => document.getElementById("sheet").selectionStart), "k = 0.0008\nT' = k*(".length);
+  await page.waitForSelector("#sheet-tip:not([hidden])");
+  await page.keyboard.press("End");
+  assert.equal(await page.isHidden("#sheet-tip"), true, "the caret left the name");
   // The sheet is the user's: nothing was changed by marking it.
   assert.equal(await page.inputValue("#sheet"), sheet);
   // A problem past the end of its line is underlined too (a blank after it).
