@@ -15,7 +15,7 @@
 import { stabilitySvg, version } from "./pkg/ratebook.js";
 import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
-import { inWorker } from "./runner.js";
+import { inWorker, hasWorker } from "./runner.js";
 
 /** Significant digits the page's results show (results.js prints with fmt(v, 6)). */
 export const SHOWN_DIGITS = 6;
@@ -189,8 +189,9 @@ export function showAccuracyLine(sheet, settings, run, { live = false } = {}) {
   clearTimeout(lineTimer);
   const seq = ++lineSeq;
   if (live) { setLine("waiting", "checked again when the slider is let go."); return; }
-  if ((run?.stats?.rhsEvals ?? 0) > LINE_WORK_LIMIT) {
-    setLine("waiting", "a large run: open the Accuracy tab to check it.");
+  // Checked by itself only off the page's thread, and only when cheap.
+  if (!hasWorker() || (run?.stats?.rhsEvals ?? 0) > LINE_WORK_LIMIT) {
+    setLine("waiting", "open the Accuracy tab to check this run.");
     return;
   }
   setLine("checking", "checking…");

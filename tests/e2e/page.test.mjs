@@ -160,7 +160,7 @@ test("the time view zooms, pans, resets and reads out values under the pointer",
   await ready(page);
   const box = await page.locator("#time-plot").boundingBox();
   await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
-  assert.match(await page.textContent("#readout"), /^t = [\d.]+: {2}T = [\d.]+/);
+  assert.match(await page.textContent("#readout"), /^t = [\d.]+: {2}d = [\d.]+/);
   const ink0 = await inkedPixels(page, "#time-hover");
   assert.ok(ink0 > 20, "the hover line is drawn");
   await page.mouse.move(0, 0);

@@ -6,17 +6,12 @@
 import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
 import { serveWww, launch, openPage, inkedPixels } from "./harness.mjs";
-import { ready, setSheet, summaryValues, download } from "./pagekit.mjs";
+import { ready, setSheet, summaryValues, download, loadExample } from "./pagekit.mjs";
 import { EXAMPLES } from "../../www/examples.js";
 
 let server, context;
 before(async () => { server = await serveWww(); context = await launch(); });
 after(async () => { await context?.close(); await server?.close(); });
-
-async function loadExample(page, id) {
-  await page.selectOption("#examples", id);
-  await page.waitForFunction((id) => document.body.dataset.shownExample === id, id);
-}
 
 async function runComparison(page) {
   await page.click("#tab-compare");
