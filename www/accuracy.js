@@ -8,10 +8,14 @@
 // printable report. The check and the study run in the Web Worker (each
 // solves the model several times), with the progress bar and its cancel
 // button; the page stays usable meanwhile.
+//
+// showAccuracyLine(sheet, settings, run, { live }) puts the verdict's one-line
+// summary above the results on the main screen: the same check, run once the
+// result settles, and shared with the Accuracy tab.
 import { stabilitySvg, version } from "./pkg/ratebook.js";
 import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
-import { inWorker } from "./runner.js";
+import { inWorker, hasWorker } from "./runner.js";
 
 /** Significant digits the page's results show (results.js prints with fmt(v, 6)). */
 export const SHOWN_DIGITS = 6;
@@ -134,6 +138,74 @@ export function reportData() {
 
 let checks = 0;
 
+// The last check asked for: { key, promise }. The Accuracy tab and the line
+// on the main screen share it, so one run is checked once.
+let lastCheck = null;
+
+function checkFor(sheet, settings) {
+  const key = JSON.stringify([sheet, settings]);
+  if (lastCheck?.key === key) return lastCheck.promise;
+  const promise = inWorker({ kind: "accuracy", sheet, settings: { ...solverSettings(settings), shownDigits: SHOWN_DIGITS } }, { label: "Checking the accuracy…" });
+  const mine = { key, promise };
+  lastCheck = mine;
+  // A failed or cancelled check is tried afresh next time.
+  promise.catch(() => { if (lastCheck === mine) lastCheck = null; });
+  return promise;
+}
+
+/** A run this costly (rate evaluations) is checked only on the Accuracy tab, not on every edit. */
+const LINE_WORK_LIMIT = 200_000;
+/** The line's check waits this long after a result settles (typing makes many). */
+const LINE_DELAY_MS = 400;
+let lineTimer = 0;
+let lineSeq = 0;
+
+function accuracyLine() {
+  let line = document.getElementById("accuracy-line");
+  if (!line) {
+    const details = el("button", { type: "button", class: "small", id: "accuracy-line-details" }, "Details");
+    details.addEventListener("click", () => document.getElementById("tab-accuracy")?.click());
+    line = el("p", { id: "accuracy-line", class: "accuracy-line", "aria-live": "polite" },
+      el("strong", {}, "Accuracy: "), el("span", { id: "accuracy-line-text" }), " ", details);
+    document.getElementById("summary")?.before(line);
+  }
+  return line;
+}
+
+function setLine(state, text, alarm = false) {
+  const line = accuracyLine();
+  line.dataset.state = state;
+  line.classList.toggle("rb-alarm", alarm);
+  line.querySelector("#accuracy-line-text").textContent = text;
+}
+
+/**
+ * The one-line accuracy summary on the main screen for the shown run. While
+ * a slider moves (`live`) it waits; once the result settles the check runs in
+ * the worker and its verdict is shown, with a button to the Accuracy tab.
+ * A model whose run is costly is checked only when the tab is opened.
+ */
+export function showAccuracyLine(sheet, settings, run, { live = false } = {}) {
+  clearTimeout(lineTimer);
+  const seq = ++lineSeq;
+  if (live) { setLine("waiting", "checked again when the slider is let go."); return; }
+  // Checked by itself only off the page's thread, and only when cheap.
+  if (!hasWorker() || (run?.stats?.rhsEvals ?? 0) > LINE_WORK_LIMIT) {
+    setLine("waiting", "open the Accuracy tab to check this run.");
+    return;
+  }
+  setLine("checking", "checking…");
+  lineTimer = setTimeout(async () => {
+    try {
+      const rep = await checkFor(sheet, settings);
+      if (seq === lineSeq) setLine("done", plainName(rep.verdict), rep.alarm);
+    } catch (e) {
+      if (seq !== lineSeq) return;
+      setLine(e.cancelled ? "cancelled" : "failed", e.cancelled ? "the check was cancelled." : `the check could not run: ${e.message}`);
+    }
+  }, LINE_DELAY_MS);
+}
+
 /**
  * Check the run and show the report. The check runs in the worker; a newer
  * call supersedes an older one still running (its result is dropped).
@@ -149,7 +221,7 @@ export async function renderAccuracy(container, sheet, settings, run) {
   container.replaceChildren(el("h3", {}, "How far to trust the answer"),
     el("p", { class: "muted", id: "accuracy-checking" }, "Checking: re-solving the model with tighter settings and probing for pitfalls…"));
   try {
-    rep = await inWorker({ kind: "accuracy", sheet, settings: { ...solverSettings(settings), shownDigits: SHOWN_DIGITS } }, { label: "Checking the accuracy…" });
+    rep = await checkFor(sheet, settings);
   } catch (e) {
     if (seq !== checks) return;
     container.dataset.state = e.cancelled ? "cancelled" : "failed";

@@ -14,7 +14,7 @@ import { showSummary, showTable, downloadCsv } from "./results.js";
 import { showParams } from "./params.js";
 import { sheetStart, grid } from "./runinfo.js";
 import { autosave, loadAutosave, keepPrevious, loadPrevious, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
-import { renderAccuracy } from "./accuracy.js";
+import { renderAccuracy, showAccuracyLine } from "./accuracy.js";
 import { initGuard, guarded } from "./guard.js";
 import { initGuide } from "./guide.js";
 
@@ -152,6 +152,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   $("sheet-state").textContent = "";
   timed("time-view", () => showRun(plotRun, { resetView, live }));
   timed("summary", () => showSummary(plotRun, { method: s.method }));
+  showAccuracyLine(sheet, s, plotRun, { live });
   $("summary").dataset.settings = JSON.stringify(s);
   document.body.dataset.shownExample = app.exampleId;
   if (tableRun) showTable(tableRun);

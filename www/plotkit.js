@@ -14,19 +14,28 @@ export function canvasPoint(canvas, event) {
   return { px: (event.clientX - r.left) * canvas.width / r.width, py: (event.clientY - r.top) * canvas.height / r.height };
 }
 
+// Spans are taken in halves (b/2 - a/2): exact, and finite even for a frame
+// across the whole number line, where b - a would overflow.
+const half = (a, b) => b / 2 - a / 2;
+/** `from + f·(to - from)` for f in [0, 1]; bit for bit the plain formula unless the span overflows. */
+const along = (from, to, f) => {
+  const d = f * half(from, to);
+  return Number.isFinite(2 * d) ? from + 2 * d : from + d + d;
+};
+
 /** Data coordinates of canvas pixel (px, py) in `frame`. */
 export function toData(frame, px, py) {
   return {
-    x: frame.x0 + (px - frame.left) / (frame.right - frame.left) * (frame.x1 - frame.x0),
-    y: frame.y1 - (py - frame.top) / (frame.bottom - frame.top) * (frame.y1 - frame.y0),
+    x: along(frame.x0, frame.x1, (px - frame.left) / (frame.right - frame.left)),
+    y: along(frame.y1, frame.y0, (py - frame.top) / (frame.bottom - frame.top)),
   };
 }
 
 /** Canvas pixel of data point (x, y) in `frame`. */
 export function toPixel(frame, x, y) {
   return {
-    px: frame.left + (x - frame.x0) / (frame.x1 - frame.x0) * (frame.right - frame.left),
-    py: frame.top + (frame.y1 - y) / (frame.y1 - frame.y0) * (frame.bottom - frame.top),
+    px: frame.left + half(frame.x0, x) / half(frame.x0, frame.x1) * (frame.right - frame.left),
+    py: frame.top + half(y, frame.y1) / half(frame.y0, frame.y1) * (frame.bottom - frame.top),
   };
 }
 

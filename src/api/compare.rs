@@ -4,6 +4,13 @@
 //! reference, and the observed order fitted on a log-log plot of error
 //! against h.
 //!
+//! What is compared depends on how the reference run ends. A run that
+//! finishes is compared by the quantity at the end. A run that a `stop when`
+//! ends is compared by its event times (the stop time and every other
+//! event's), since the stop condition pins the quantity there: its
+//! differences would be rounding noise. Errors at rounding level, or under
+//! what the reference itself resolves, are said so in words and fit no order.
+//!
 //! Everything goes through [`super::solve`], so the comparison sees exactly
 //! what a user of the JS API sees.
 
@@ -60,12 +67,33 @@ pub struct CompareRun {
     pub end_t: f64,
     /// The quantity at the end.
     pub end: f64,
-    /// `end` minus the reference's end value (0 for the reference).
+    /// `end` minus the reference's end value, or for a comparison of event
+    /// times the stop time minus the reference's (0 for the reference).
     pub difference: f64,
+    /// The run's events in time order (the stop included).
+    pub events: Vec<CompareEvent>,
+    /// The compared error: `|difference|` for the end value, the largest
+    /// difference from the reference's event times for a comparison of
+    /// event times (0 for the reference).
+    pub error: f64,
+    /// Events of the reference this run lacks plus events it has that the
+    /// reference lacks (matched by condition and by occurrence); always 0
+    /// when the end value is compared.
+    pub mismatched: usize,
     /// Right-hand-side evaluations.
     pub rhs_evals: u64,
     /// The run's status (`finished`, `stopped`, `failed`).
     pub status: String,
+}
+
+/// One event of a compared run.
+#[derive(Clone, Debug, Serialize)]
+#[serde(rename_all = "camelCase")]
+pub struct CompareEvent {
+    /// The condition as written in the sheet.
+    pub name: String,
+    /// When it happened.
+    pub t: f64,
 }
 
 /// A method's observed order: the least-squares slope of log|error| against log h.
@@ -76,10 +104,27 @@ pub struct OrderFit {
     pub method: String,
     /// The step sizes used in the fit.
     pub steps: Vec<f64>,
-    /// |difference from the reference| at the end, for each step.
+    /// The compared error ([`CompareRun::error`]) at each step.
     pub errors: Vec<f64>,
-    /// The fitted slope; `None` when fewer than two errors were non-zero and finite.
+    /// The fitted slope, over the errors that the comparison resolves (above
+    /// rounding and above the reference's own accuracy, from runs that have
+    /// the reference's events); `None` with fewer than two.
     pub slope: Option<f64>,
+    /// Why there is no slope: `rounding` (every error at rounding level),
+    /// `reference` (under what the reference resolves), `events` (runs that
+    /// miss or add events), `few` (fewer than two usable errors).
+    pub no_slope: Option<&'static str>,
+}
+
+/// What the comparison measured.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Measure {
+    /// The compared quantity at the end of the run.
+    End,
+    /// The event times of a run that a `stop when` ends: the stop time and
+    /// every other event's.
+    EventTimes,
 }
 
 /// The whole comparison.
@@ -96,7 +141,27 @@ pub struct CompareReport {
     pub runs: Vec<CompareRun>,
     /// One fit per method.
     pub fits: Vec<OrderFit>,
+    /// What the errors measure.
+    pub measure: Measure,
+    /// The same in words, for a table heading or an axis: `T at the end`,
+    /// `the stop time (h < 0.05)`.
+    pub measured: String,
+    /// `rounding` when every run agrees with the reference to rounding,
+    /// `reference` when every run agrees with it to within its own accuracy;
+    /// absent otherwise.
+    pub agreement: Option<&'static str>,
+    /// What was compared and how to read it, in a sentence or two.
+    pub note: String,
 }
+
+/// Relative size under which a difference is rounding: a thousand units in
+/// the last place of the values compared (each of the runs here takes up to
+/// a few hundred steps, each rounding once or more; common practice, no
+/// source).
+const ROUNDING: f64 = 1000.0 * f64::EPSILON;
+/// A difference under this many times the reference's relative tolerance is
+/// within the reference's own error, and is not fitted.
+const REFERENCE_RESOLVES: f64 = 10.0;
 
 /// The least-squares slope of `ln y` against `ln x` over the pairs where both
 /// are positive and finite; `None` with fewer than two such pairs.
@@ -116,6 +181,9 @@ fn pick(report: &RunReport, quantity: &str, method: &str, step: Option<f64>) -> 
         end_t,
         end,
         difference: 0.0,
+        events: report.events.iter().map(|e| CompareEvent { name: e.name.clone(), t: e.t }).collect(),
+        error: 0.0,
+        mismatched: 0,
         rhs_evals: report.stats.rhs_evals,
         status: report.status.to_string(),
     }
@@ -158,28 +226,164 @@ pub fn compare(
     if !(h0 > 0.0) {
         return Err(invalid("to", "the run has no length to compare over"));
     }
+    let measure = if reference_report.status == "stopped" { Measure::EventTimes } else { Measure::End };
+    let scale = Scale::of(measure, &reference, t0, req.reference_rtol);
     let mut runs = Vec::new();
     let mut fits = Vec::new();
     let mut done = 1;
     for method in &req.methods {
         let mut steps = Vec::new();
         let mut errors = Vec::new();
+        let mut usable = Vec::new();
         for k in 0..levels {
             let h = h0 / f64::from(1u32 << k);
             let r = RunRequest { method: Some(method.clone()), step: Some(h), at: None, ..base.clone() };
             let report = solve(sheet, &r)?;
             let mut run = pick(&report, &quantity, method, Some(h));
-            run.difference = run.end - reference.end;
+            measure_run(&mut run, &reference, measure);
             steps.push(h);
-            errors.push(run.difference.abs());
+            errors.push(run.error);
+            usable.push(run.mismatched == 0);
             runs.push(run);
             done += 1;
             progress(done, total);
         }
-        let slope = log_log_slope(&steps, &errors);
-        fits.push(OrderFit { method: method.clone(), steps, errors, slope });
+        fits.push(fit(method, steps, errors, &usable, &scale));
     }
-    Ok(CompareReport { quantity, independent: reference_report.independent.clone(), reference, runs, fits })
+    let agreement = ["rounding", "reference"].into_iter().find(|&level| {
+        fits.iter().all(|f| f.errors.iter().all(|&e| e <= scale.floor(level)))
+    });
+    let measured = measured_words(measure, &quantity, &reference);
+    let note = note(measure, &measured, agreement, &fits);
+    Ok(CompareReport {
+        quantity,
+        independent: reference_report.independent.clone(),
+        reference,
+        runs,
+        fits,
+        measure,
+        measured,
+        agreement,
+        note,
+    })
+}
+
+/// The sizes against which a comparison's errors are judged.
+struct Scale {
+    /// Errors at or under this are rounding.
+    rounding: f64,
+    /// Errors at or under this are within the reference's own error.
+    reference: f64,
+}
+
+impl Scale {
+    fn of(measure: Measure, reference: &CompareRun, t0: f64, reference_rtol: f64) -> Self {
+        // The size of what is compared: the quantity over the whole run, or
+        // the times.
+        let size = match measure {
+            Measure::End => reference.y.iter().filter(|v| v.is_finite()).fold(0.0f64, |m, v| m.max(v.abs())),
+            Measure::EventTimes => reference.end_t.abs().max(t0.abs()),
+        }
+        .max(f64::MIN_POSITIVE);
+        let rounding = ROUNDING * size;
+        Scale { rounding, reference: (REFERENCE_RESOLVES * reference_rtol * size).max(rounding) }
+    }
+
+    fn floor(&self, level: &str) -> f64 {
+        if level == "rounding" {
+            self.rounding
+        } else {
+            self.reference
+        }
+    }
+}
+
+/// Fill in `run`'s difference, error and mismatched events against `reference`.
+fn measure_run(run: &mut CompareRun, reference: &CompareRun, measure: Measure) {
+    match measure {
+        Measure::End => {
+            run.difference = run.end - reference.end;
+            run.error = run.difference.abs();
+        }
+        Measure::EventTimes => {
+            run.difference = run.end_t - reference.end_t;
+            // Match the k-th crossing of each condition with the reference's k-th.
+            let nth = |events: &[CompareEvent], i: usize| events[..i].iter().filter(|e| e.name == events[i].name).count();
+            let mut error = 0.0f64;
+            let mut matched = 0;
+            for (i, e) in reference.events.iter().enumerate() {
+                let k = nth(&reference.events, i);
+                let mine = (0..run.events.len()).find(|&j| run.events[j].name == e.name && nth(&run.events, j) == k);
+                if let Some(j) = mine {
+                    error = error.max((run.events[j].t - e.t).abs());
+                    matched += 1;
+                }
+            }
+            run.error = error;
+            run.mismatched = (reference.events.len() - matched) + (run.events.len() - matched);
+        }
+    }
+}
+
+/// The order fit of one method over the errors the comparison resolves.
+fn fit(method: &str, steps: Vec<f64>, errors: Vec<f64>, usable: &[bool], scale: &Scale) -> OrderFit {
+    let keep: Vec<usize> = (0..steps.len()).filter(|&i| usable[i] && errors[i] > scale.reference && errors[i].is_finite()).collect();
+    let slope = if keep.len() >= 2 {
+        log_log_slope(&keep.iter().map(|&i| steps[i]).collect::<Vec<_>>(), &keep.iter().map(|&i| errors[i]).collect::<Vec<_>>())
+    } else {
+        None
+    };
+    let no_slope = match slope {
+        Some(_) => None,
+        None if errors.iter().all(|&e| e <= scale.rounding) => Some("rounding"),
+        None if errors.iter().all(|&e| e <= scale.reference) => Some("reference"),
+        None if usable.iter().any(|u| !u) => Some("events"),
+        None => Some("few"),
+    };
+    OrderFit { method: method.to_string(), steps, errors, slope, no_slope }
+}
+
+/// What was measured, in words.
+fn measured_words(measure: Measure, quantity: &str, reference: &CompareRun) -> String {
+    match measure {
+        Measure::End => format!("{quantity} at the end"),
+        Measure::EventTimes => {
+            let stop = reference.events.last().map(|e| e.name.as_str()).unwrap_or("stop");
+            if reference.events.len() > 1 {
+                format!("the stop time ({stop}) and every event time")
+            } else {
+                format!("the stop time ({stop})")
+            }
+        }
+    }
+}
+
+/// The view's sentence on what was compared and what the fits say.
+fn note(measure: Measure, measured: &str, agreement: Option<&str>, fits: &[OrderFit]) -> String {
+    let what = match measure {
+        Measure::End => format!("Compared: {measured}, each run against the adaptive reference."),
+        Measure::EventTimes => format!(
+            "The run ends on its stop condition, which pins the compared quantity there; compared instead: {measured}, each run against the adaptive reference (the error of a run is its largest difference in an event time)."
+        ),
+    };
+    let verdict = match agreement {
+        Some("rounding") => " All methods agree with the reference to rounding at every step tried: there is no error to measure, so no order is fitted.".to_string(),
+        Some(_) => " All methods agree with the reference to within its own accuracy at every step tried: the differences cannot be told from the reference's error, so no order is fitted.".to_string(),
+        None => {
+            let name = |f: &OrderFit| crate::solve::method(&f.method).map_or(f.method.clone(), |m| m.name.to_string());
+            let quiet: Vec<String> = fits.iter().filter(|f| matches!(f.no_slope, Some("rounding") | Some("reference"))).map(name).collect();
+            let missed: Vec<String> = fits.iter().filter(|f| f.no_slope == Some("events")).map(name).collect();
+            let mut s = String::new();
+            if !quiet.is_empty() {
+                s += &format!(" No order is fitted for {}: the errors are too small to measure.", quiet.join(", "));
+            }
+            if !missed.is_empty() {
+                s += &format!(" No order is fitted for {}: runs miss or add events.", missed.join(", "));
+            }
+            s
+        }
+    };
+    what + &verdict
 }
 
 #[cfg(test)]

@@ -2,6 +2,7 @@
 //! `h·λ` points of a run, and the log-log convergence plot of error against
 //! step size.
 
+use super::axes::{tick_label, Axis, X_LABELS, Y_LABELS};
 use super::DrawError;
 use crate::study::stability::{StabilityFunction, C64};
 use plotters::coord::Shift;
@@ -31,8 +32,7 @@ where
 {
     root.fill(&WHITE)?;
     let (w, h) = root.dim_in_pixel();
-    let frame = f.frame(points);
-    let (x0, x1, mut y0, mut y1) = frame;
+    let (x0, x1, mut y0, mut y1) = region_frame(f.frame(points));
     // Equal scales on both axes so that the region keeps its shape.
     let plot_w = (w as f64 - 70.0).max(10.0);
     let plot_h = (h as f64 - 70.0).max(10.0);
@@ -47,11 +47,14 @@ where
         .margin(10)
         .x_label_area_size(32)
         .y_label_area_size(44)
-        .build_cartesian_2d(x0..x1, y0..y1)?;
+        .build_cartesian_2d(Axis::new(x0, x1, false, X_LABELS), Axis::new(y0, y1, false, Y_LABELS))?;
+    let label = |v: &f64| tick_label(*v);
     chart
         .configure_mesh()
         .x_desc("Re(h·λ)")
         .y_desc("Im(h·λ)")
+        .x_label_formatter(&label)
+        .y_label_formatter(&label)
         .light_line_style(RGBColor(0xf0, 0xf0, 0xf0))
         .draw()?;
     let rows = 160usize;
@@ -78,6 +81,21 @@ where
     }
     root.present()?;
     Ok(())
+}
+
+/// The stability picture's window `(x0, x1, y0, y1)`, made safe to draw:
+/// each side within ±1e300 (an `h·λ` beyond that is drawn at the edge), the
+/// sides ordered, and each axis wide enough to tick ([`super::axes`]).
+fn region_frame((x0, x1, y0, y1): (f64, f64, f64, f64)) -> (f64, f64, f64, f64) {
+    const FAR: f64 = 1e300;
+    let side = |a: f64, b: f64, fallback: (f64, f64)| {
+        let (a, b) = (if a.is_nan() { fallback.0 } else { a.clamp(-FAR, FAR) }, if b.is_nan() { fallback.1 } else { b.clamp(-FAR, FAR) });
+        let (a, b) = if b > a { (a, b) } else { fallback };
+        super::axes::shown_range(Some((a, b)), false, [].iter())
+    };
+    let (x0, x1) = side(x0, x1, (-5.0, 5.0));
+    let (y0, y1) = side(y0, y1, (-5.0, 5.0));
+    (x0, x1, y0, y1)
 }
 
 /// One line of a convergence plot: errors at a ladder of steps.
@@ -167,32 +185,5 @@ mod tests {
         let e: Vec<f64> = h.iter().map(|h: &f64| 3.0 * h.powi(4)).collect();
         let svg = super::super::figure_svg(&convergence(&[ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }]), 480, 360).unwrap();
         assert!(svg.contains("<polyline") && svg.contains("y(1), RK4"));
-    }
-}
-#[cfg(test)]
-mod look {
-    use super::*;
-    #[test]
-    #[ignore]
-    fn write_svgs() {
-        let rk4 = StabilityFunction::Polynomial(vec![1.0, 1.0, 0.5, 1.0 / 6.0, 1.0 / 24.0]);
-        let mut svg = String::new();
-        {
-            let root = SVGBackend::with_string(&mut svg, (480, 360)).into_drawing_area();
-            stability_region(&root, "RK4, h = 0.01", &rk4, &[C64::new(-10.0, 0.0), C64::new(-1.0, 1.0)]).unwrap();
-        }
-        std::fs::write("/tmp/st/region.svg", svg).unwrap();
-        let h = [0.1, 0.05, 0.025, 0.0125];
-        let e: Vec<f64> = h.iter().map(|h: &f64| 3.0 * h.powi(4)).collect();
-        let e2: Vec<f64> = h.iter().map(|h: &f64| 0.3 * h.powi(1)).collect();
-        let lines = [ErrorLine { label: "y(1), RK4", h: &h, error: &e, order: Some(4.0) }, ErrorLine { label: "y(1), Euler", h: &h, error: &e2, order: Some(1.0) }];
-        std::fs::write("/tmp/st/conv.svg", super::super::figure_svg(&convergence(&lines), 480, 360).unwrap()).unwrap();
-        let be = StabilityFunction::theta(1.0);
-        let mut svg = String::new();
-        {
-            let root = SVGBackend::with_string(&mut svg, (480, 360)).into_drawing_area();
-            stability_region(&root, "beuler", &be, &[C64::new(-10.0, 0.0)]).unwrap();
-        }
-        std::fs::write("/tmp/st/be.svg", svg).unwrap();
     }
 }

@@ -1,18 +1,16 @@
-//! Text sizes without a text engine, and the legend drawn with them.
+//! Text sizes without a text engine.
 //!
 //! plotters measures text through its font backend, which in the browser
 //! adds an element to the page and reads its size back: a forced layout of
 //! the whole page for every label, and a panic in a Web Worker, which has no
 //! page. [`Measured`] wraps any backend and answers text sizes from a table
 //! of advance widths instead, so a drawing costs the same everywhere and
-//! gives the same layout on the canvas, in SVG and in a worker. The legend
-//! ([`legend`]) and the label layout of the plots use the same table.
+//! gives the same layout on the canvas, in SVG and in a worker. The label
+//! layout of the plots ([`super::labels`]) uses the same table.
 
 use plotters_backend::{BackendColor, BackendCoord, BackendStyle as Style, BackendTextStyle, DrawingBackend, DrawingErrorKind};
 use plotters::coord::Shift;
 use plotters::prelude::*;
-
-use super::DrawError;
 
 /// Advance width of `c` in thousandths of an em, for a Helvetica-like
 /// sans-serif (approximate metrics, from memory: a label needs enough room,
@@ -153,75 +151,6 @@ impl<DB: DrawingBackend> DrawingBackend for Measured<DB> {
     }
 }
 
-/// One row of a legend: a sample of the line and its label.
-pub struct LegendEntry<'a> {
-    /// The label.
-    pub label: &'a str,
-    /// The line's colour.
-    pub colour: RGBColor,
-    /// The line's width in pixels.
-    pub width: u32,
-    /// Whether the line is dashed.
-    pub dashed: bool,
-}
-
-/// Which corner of the plotting area a legend goes in.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Corner {
-    /// Top right.
-    UpperRight,
-    /// Bottom right.
-    LowerRight,
-}
-
-/// Font size of legend labels, pixels.
-const LEGEND_FONT: f64 = 12.0;
-
-/// Draw a legend box for `entries` in `corner` of the plotting area
-/// `area` (`(left, top, right, bottom)` in pixels).
-pub fn legend<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    entries: &[LegendEntry],
-    area: (i32, i32, i32, i32),
-    corner: Corner,
-) -> Result<(), DrawError>
-where
-    DB::ErrorType: 'static,
-{
-    if entries.is_empty() {
-        return Ok(());
-    }
-    let (pad, sample, gap, row) = (6, 18, 6, 18);
-    let text_w = entries.iter().map(|e| text_width(e.label, LEGEND_FONT) as i32).max().unwrap_or(0);
-    let (w, h) = (2 * pad + sample + gap + text_w, 2 * pad + row * entries.len() as i32 - 4);
-    let x1 = area.2 - 8;
-    let x0 = (x1 - w).max(area.0);
-    let y0 = match corner {
-        Corner::UpperRight => area.1 + 8,
-        Corner::LowerRight => (area.3 - 8 - h).max(area.1),
-    };
-    root.draw(&Rectangle::new([(x0, y0), (x1, y0 + h)], WHITE.mix(0.85).filled()))?;
-    root.draw(&Rectangle::new([(x0, y0), (x1, y0 + h)], Color::stroke_width(&RGBColor(0xb0, 0xb0, 0xb0), 1)))?;
-    let font = ("sans-serif", LEGEND_FONT).into_font().color(&super::INK);
-    for (k, e) in entries.iter().enumerate() {
-        let cy = y0 + pad + row * k as i32 + 6;
-        let style = Color::stroke_width(&e.colour, e.width.max(1));
-        let (sx, ex) = (x0 + pad, x0 + pad + sample);
-        if e.dashed {
-            root.draw(&PathElement::new(vec![(sx, cy), (sx + 7, cy)], style))?;
-            root.draw(&PathElement::new(vec![(ex - 7, cy), (ex, cy)], style))?;
-        } else {
-            root.draw(&PathElement::new(vec![(sx, cy), (ex, cy)], style))?;
-        }
-        let text = font.clone().pos(plotters::style::text_anchor::Pos::new(
-            plotters::style::text_anchor::HPos::Left,
-            plotters::style::text_anchor::VPos::Center,
-        ));
-        root.draw(&Text::new(e.label.to_string(), (ex + gap, cy), text))?;
-    }
-    Ok(())
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -232,17 +161,5 @@ mod tests {
         assert!(text_width("mmm", 12.0) > text_width("iii", 12.0));
         assert_eq!(text_width("10", 10.0), 12); // two digits of 0.556 em
         assert!(text_width("peak 4.2", 24.0) >= 2 * text_width("peak 4.2", 12.0) - 1);
-    }
-
-    #[test]
-    fn a_measured_svg_has_its_legend() {
-        let mut svg = String::new();
-        {
-            let root = measured(SVGBackend::with_string(&mut svg, (300, 200)));
-            let entries = [LegendEntry { label: "level", colour: RGBColor(0, 0, 0), width: 2, dashed: false }];
-            legend(&root, &entries, (40, 10, 290, 160), Corner::UpperRight).unwrap();
-        }
-        assert!(svg.contains(">level<") || svg.lines().any(|l| l.trim() == "level"), "{svg}");
-        assert!(svg.contains("<rect"));
     }
 }

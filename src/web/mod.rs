@@ -239,7 +239,7 @@ impl Plot {
 struct CanvasStrokes(Option<web_sys::CanvasRenderingContext2d>);
 
 impl draw::Strokes for CanvasStrokes {
-    fn field(&mut self, strokes: &[Vec<(i32, i32)>]) {
+    fn field(&mut self, strokes: &[Vec<(i32, i32)>], colour: plotters::style::RGBColor) {
         let Some(ctx) = &self.0 else { return };
         ctx.begin_path();
         for s in strokes {
@@ -253,12 +253,12 @@ impl draw::Strokes for CanvasStrokes {
                 }
             }
         }
-        ctx.set_stroke_style_str(draw::FIELD_CSS);
+        ctx.set_stroke_style_str(&draw::style::hex(colour));
         ctx.set_line_width(1.0);
         ctx.stroke();
     }
 
-    fn curve(&mut self, points: &[(f64, f64)], colour: plotters::style::RGBColor, width: u32, dashed: bool) {
+    fn curve(&mut self, points: &[(f64, f64)], colour: plotters::style::RGBColor, width: u32, dash: &[f64]) {
         let Some(ctx) = &self.0 else { return };
         ctx.save();
         ctx.begin_path();
@@ -273,9 +273,8 @@ impl draw::Strokes for CanvasStrokes {
         ctx.set_line_width(width as f64);
         ctx.set_line_join("round");
         ctx.set_line_cap("round");
-        if dashed {
-            let dash = js_sys::Array::of2(&6.0.into(), &4.0.into());
-            let _ = ctx.set_line_dash(&dash);
+        if !dash.is_empty() {
+            let _ = ctx.set_line_dash(&dash.iter().map(|&d| JsValue::from(d)).collect::<js_sys::Array>());
         }
         ctx.stroke();
         ctx.restore();

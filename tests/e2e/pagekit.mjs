@@ -54,3 +54,9 @@ export function finalValues(run) {
   const stop = run.status === "stopped" ? run.events.at(-1) : null;
   return Object.fromEntries([...run.states, ...run.helpers].map((n) => [n, stop ? stop.values[n] : run.values[n].at(-1)]));
 }
+
+/** Load the worked example `id` from the menu and wait until it is shown. */
+export async function loadExample(page, id) {
+  await page.selectOption("#examples", id);
+  await page.waitForFunction((id) => document.body.dataset.shownExample === id, id);
+}

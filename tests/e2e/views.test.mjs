@@ -69,20 +69,21 @@ test("field view: a two-state example shows arrows, nullclines and the orbit; a 
   await loadExample(page, "grazers");
   await page.click("#tab-field");
   await page.waitForFunction(() => document.getElementById("field-note").textContent.includes("Phase plane of b and p"));
-  // Nullcline colours (palette 3 and 4) are on the canvas.
+  // Nullcline colours (slots 3 and 4: raspberry and sky, src/draw/style.rs) are on the canvas,
+  // and the orbit in slot 0 (deep teal).
   const colours = await page.$eval("#field-plot", (c) => {
     const d = c.getContext("2d").getImageData(0, 0, c.width, c.height).data;
     const near = (i, r, g, b) => Math.abs(d[i] - r) < 30 && Math.abs(d[i + 1] - g) < 30 && Math.abs(d[i + 2] - b) < 30;
-    let purple = 0, olive = 0, blue = 0;
+    let raspberry = 0, sky = 0, teal = 0;
     for (let i = 0; i < d.length; i += 4) {
-      if (near(i, 0x8e, 0x3b, 0x9e)) purple++;
-      if (near(i, 0x9a, 0x7b, 0x12)) olive++;
-      if (near(i, 0x1f, 0x5f, 0xa8)) blue++;
+      if (near(i, 0xcc, 0x44, 0x77)) raspberry++;
+      if (near(i, 0x2b, 0x8d, 0xb5)) sky++;
+      if (near(i, 0x14, 0x70, 0x5f)) teal++;
     }
-    return { purple, olive, blue };
+    return { raspberry, sky, teal };
   });
-  assert.ok(colours.purple > 300 && colours.olive > 300, `nullclines drawn: ${JSON.stringify(colours)}`);
-  assert.ok(colours.blue > 1000, "the solution orbit is drawn");
+  assert.ok(colours.raspberry > 150 && colours.sky > 100, `nullclines drawn: ${JSON.stringify(colours)}`);
+  assert.ok(colours.teal > 1000, "the solution orbit is drawn");
   const svg = await download(page, '[data-svg="field-plot"]');
   assert.ok((svg.match(/<polyline/g) ?? []).length > 2 * 24 * 24, "arrows (shaft and head) for each of the 24x24 samples");
   assert.match(svg, /b(&apos;|&#39;|')\s*= 0/, "nullclines are labelled");
