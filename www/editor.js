@@ -177,6 +177,21 @@ function typedWord(s) {
   return { word: m ? m[0] : "", from: at - (m ? m[0].length : 0) };
 }
 
+/** The name the caret is in or next to, outside comments; "" when none. */
+export function wordAtCaret() {
+  const s = sheet();
+  const at = s.selectionStart;
+  const lineStart = s.value.lastIndexOf("\n", at - 1) + 1;
+  const found = s.value.indexOf("\n", at);
+  const line = s.value.slice(lineStart, found < 0 ? s.value.length : found);
+  const col = at - lineStart;
+  if (line.slice(0, col).includes("#")) return "";
+  for (const m of line.matchAll(/[A-Za-z_][A-Za-z0-9_]*/g)) {
+    if (m.index <= col && col <= m.index + m[0].length) return m[0];
+  }
+  return "";
+}
+
 /** Open (or refresh) the list for the word before the caret; `asked`: Ctrl+Space, which lists all. */
 function offer(asked = false) {
   const s = sheet();

@@ -1,5 +1,6 @@
 // The guide to the sheet: a searchable side panel beside the editor (the
-// Guide button or F1), never over it. Every statement form with a short
+// Guide button or F1; F1 on a function in the sheet opens it at that
+// function), never over it. Every statement form with a short
 // example, the functions with their domains, events and switches, the
 // limits, and how to read the accuracy verdict.
 //
@@ -13,7 +14,7 @@
 // backticks; `{name}` is replaced by the solver's limit of that name.
 import { sheetLanguage } from "./pkg/ratebook.js";
 import { $, el } from "./dom.js";
-import { insertIntoSheet, setCompletions } from "./editor.js";
+import { insertIntoSheet, setCompletions, wordAtCaret } from "./editor.js";
 
 /**
  * What each built-in function does, where it has a value and what it gives
@@ -314,6 +315,12 @@ function renderGuide() {
     : "Nothing matches; try one word, such as a function name or \"event\".";
 }
 
+/** What to search the guide for when F1 is pressed on `word` in the sheet: a function, or an event's words. */
+function guideTopic(word) {
+  if (language().functions.some((f) => f.name === word)) return word;
+  return { stop: "stop when", mark: "mark when", when: "when" }[word] ?? "";
+}
+
 /** Open or close the guide beside the editor (`open` omitted: toggle). */
 export function toggleGuide(open) {
   const panel = $("guide");
@@ -340,7 +347,12 @@ export function initGuide() {
     if (e.target.id === "guide-search" && e.target.value) { e.target.value = ""; renderGuide(); } else toggleGuide(false);
   });
   document.addEventListener("keydown", (e) => {
-    if (e.key === "F1" && !document.body.classList.contains("embed")) { e.preventDefault(); toggleGuide(); }
+    if (e.key !== "F1" || document.body.classList.contains("embed")) return;
+    e.preventDefault();
+    // From the sheet, F1 on a function or an event word opens the guide at it.
+    const topic = document.activeElement?.id === "sheet" && $("guide").hidden ? guideTopic(wordAtCaret()) : "";
+    if (topic) { $("guide-search").value = topic; renderGuide(); }
+    toggleGuide();
   });
   $("guide-body").addEventListener("click", (e) => {
     const fn = e.target.closest("[data-insert-fn]");

@@ -66,7 +66,7 @@ test("the guide opens beside the editor, by button and by F1, and the sheet stay
   await page.close();
 });
 
-test("the guide is searched: matches are marked, and a query with no match says so", async () => {
+test("the guide is searched: matches are marked, a query with no match says so, F1 on a function searches it", async () => {
   const { page, errors } = await openPage(context, server.url);
   await ready(page);
   await page.click("#guide-toggle");
@@ -91,6 +91,21 @@ test("the guide is searched: matches are marked, and a query with no match says 
   await page.keyboard.press("Escape");
   assert.equal(await page.inputValue("#guide-search"), "");
   assert.equal(await page.$$eval("#guide .guide-entry", (n) => n.length), all);
+  // F1 on a function in the sheet opens the guide at that function; on an event word, at the events.
+  await page.keyboard.press("Escape");
+  await setSheet(page, "y' = -sqrt(y)\ny(0) = 1\nstop when y < 0.5\n");
+  await page.click("#sheet");
+  await page.evaluate(() => { const s = document.getElementById("sheet"); s.setSelectionRange(8, 8); });
+  await page.keyboard.press("F1");
+  assert.equal(await page.inputValue("#guide-search"), "sqrt");
+  const rows = await page.$$eval("#guide tr[data-fn]", (r) => r.map((n) => [n.dataset.fn, n.textContent]));
+  assert.equal(rows[0][0], "sqrt");
+  assert.ok(rows.every(([, text]) => text.includes("sqrt")), "only rows that speak of sqrt (hypot's note does)");
+  await page.keyboard.press("F1");
+  await page.evaluate(() => { const s = document.getElementById("sheet"); s.setSelectionRange(s.value.indexOf("stop") + 2, s.value.indexOf("stop") + 2); });
+  await page.keyboard.press("F1");
+  assert.equal(await page.inputValue("#guide-search"), "stop when");
+  assert.ok((await page.$$eval("#guide .guide-entry", (n) => n.map((e) => e.id))).includes("guide-stop"));
   assert.deepEqual(errors, []);
   await page.close();
 });
