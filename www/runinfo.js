@@ -35,13 +35,6 @@ export function extremaOf(run) {
   return out;
 }
 
-/** The start time given in the sheet's initial values, or 0. */
-export function sheetStart(sheet) {
-  const m = /^\s*[A-Za-z_][A-Za-z_0-9]*'*\s*\(\s*([^)]*)\)\s*=/m.exec(sheet.replace(/#.*$/gm, ""));
-  const v = m ? Number(m[1]) : 0;
-  return Number.isFinite(v) ? v : 0;
-}
-
 /**
  * Output times t0, t0 + s, t0 + 2s, … and `to` itself (at most `cap` + 1 of
  * them; a wider spacing is used when there would be more).

@@ -1,15 +1,16 @@
-// Where solves run. Short solves run on the page's thread (live sliders need
-// them within a frame); anything that may take longer than about 100 ms goes
-// to a Web Worker, with a progress bar and a cancel button, so the page never
-// freezes. The worker is built from the inlined bundle in the single file
-// (a blob URL, which works from file:// and in a sandboxed frame) or from
-// worker.js when served.
+// Where jobs run (jobs.js). Solves and studies go to a Web Worker, with a
+// progress bar and a cancel button, so the page never freezes; only a quick
+// model's slider drag solves on the page's thread (app.js). The worker is
+// built from the inlined bundle in the single file (a blob URL, which works
+// from file:// and in a sandboxed frame) or from worker.js when served.
 import { $ } from "./dom.js";
+import { runJob } from "./jobs.js";
 
 let sharedSolverModule = null;
 let worker = null;
 let workerBroken = false;
 let nextId = 1;
+const RESTART_AFTER_MS = 100;
 const pending = new Map();
 
 /** Give the runner the compiled solver module (shared with the worker). */
@@ -17,10 +18,12 @@ export function setModule(module) {
   sharedSolverModule = module;
 }
 
+let bundleUrl = null;
 function workerUrl() {
   const src = $("worker-src")?.textContent ?? "";
-  if (src.trim()) return URL.createObjectURL(new Blob([src], { type: "text/javascript" }));
-  return new URL("./worker.js", import.meta.url);
+  if (!src.trim()) return new URL("./worker.js", import.meta.url);
+  bundleUrl ??= URL.createObjectURL(new Blob([src], { type: "text/javascript" }));
+  return bundleUrl;
 }
 
 function startWorker() {
@@ -56,15 +59,9 @@ function startWorker() {
   return worker;
 }
 
-let localFns = {};
-/** The page-thread versions of the worker's jobs (same names). */
-export function setLocal(fns) {
-  localFns = fns;
-}
-
 function runHere(job) {
   try {
-    job.resolve(localFns[job.msg.kind](job.msg, job.onProgress));
+    job.resolve(runJob(job.msg, job.onProgress));
   } catch (e) {
     job.reject(e);
   }
@@ -104,32 +101,58 @@ function finishBusy(job) {
   if (busyJob === job) { busyJob = null; $("busy").hidden = true; }
 }
 
-/** Cancel what the worker is doing: it is stopped and started afresh. */
-export function cancelAll() {
+/**
+ * Stop the worker and reject the jobs `drop` picks with `why`; the others
+ * start again in a fresh worker.
+ */
+function restartWorker(drop, why) {
   if (!worker) return;
   worker.terminate();
   worker = null;
   const jobs = [...pending.values()];
   pending.clear();
-  for (const job of jobs) { finishBusy(job); job.reject(Object.assign(new Error("cancelled"), { cancelled: true })); }
+  for (const job of jobs) {
+    if (drop(job)) { finishBusy(job); job.reject(Object.assign(new Error(why), { [why]: true })); }
+    else post(job);
+  }
+}
+
+/** Cancel what the worker is doing: it is stopped and started afresh. */
+export function cancelAll() {
+  restartWorker(() => true, "cancelled");
+}
+
+function post(job) {
+  const w = startWorker();
+  if (!w) { finishBusy(job); runHere(job); return; }
+  pending.set(job.msg.id, job);
+  w.postMessage(job.msg);
 }
 
 /**
- * Run a job ({ kind, ...args }) in the worker. Resolves to its value; rejects
- * with the solver's error, or with { cancelled: true }.
+ * Run a job ({ kind, ...args }, see jobs.js) in the worker. Resolves to its
+ * value; rejects with the solver's error, or with { cancelled: true }. A
+ * job posted with `supersede` makes every earlier one posted so obsolete
+ * (the caller ignores their results): when one of those has been out for
+ * over RESTART_AFTER_MS, the worker is restarted and they are rejected with
+ * { superseded: true }, so that a long solve never holds up the next one.
+ * (Quicker ones are left to finish: a restart costs more than they do.)
  */
-export function inWorker(msg, { label = "Solving…", onProgress } = {}) {
+export function inWorker(msg, { label = "Solving…", onProgress, supersede = false } = {}) {
+  const now = performance.now();
+  if (supersede && [...pending.values()].some((j) => j.supersede && now - j.posted > RESTART_AFTER_MS)) {
+    restartWorker((j) => j.supersede, "superseded");
+  }
   return new Promise((resolve, reject) => {
-    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, progress: null, onProgress: (d, n) => {
+    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, supersede, posted: now, progress: null, onProgress: (d, n) => {
       job.progress = [d, n];
       onProgress?.(d, n);
       if (busyJob === job) showProgress(job);
     } };
-    const w = startWorker();
-    if (!w) { runHere(job); return; }
-    pending.set(job.msg.id, job);
+    // Test hook: a deliberate panic armed on the page goes with the next job.
+    if (globalThis.ratebookArmTestPanic === true) { globalThis.ratebookArmTestPanic = false; job.msg.armTestPanic = true; }
     showBusy(job);
-    w.postMessage(job.msg);
+    post(job);
   });
 }
 

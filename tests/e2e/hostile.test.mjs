@@ -23,8 +23,13 @@ async function ready(page) {
   await page.waitForFunction(() => document.body.dataset.ready === "1", null, { timeout: 20000 });
 }
 
+/**
+ * Replace the sheet as a paste does: one input event. (Playwright's fill
+ * types a textarea line by line, an input event per line.)
+ */
 async function typeSheet(page, text) {
-  await page.fill("#sheet", text);
+  await page.focus("#sheet");
+  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.select(); document.execCommand("insertText", false, t); }, text);
   await page.waitForTimeout(450);
 }
 
@@ -100,7 +105,7 @@ test("a panic in the solver leaves a working page, reports the message and keeps
   assert.equal(await page.inputValue("#sheet"), sheet + "# edited\n", "the sheet is kept");
   assert.ok(errors.some((e) => /deliberate test panic/.test(e)), "the hook reported the message on the console");
   // The autosave holds the edit made just before the panic.
-  assert.equal(await page.evaluate(() => JSON.parse(localStorage.getItem("ratebook.autosave.v1")).sheet), sheet + "# edited\n");
+  assert.equal(await page.evaluate(() => JSON.parse(localStorage.getItem(`ratebook.autosave.v2 ${location.href.split(/[?#]/)[0]}`)).sheet), sheet + "# edited\n");
   // The restarted solver works: the next edit solves and draws.
   await typeSheet(page, sheet.replace("0.7", "0.9"));
   await page.waitForSelector("#problem", { state: "hidden" });
