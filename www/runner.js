@@ -43,6 +43,7 @@ function startWorker() {
     finishBusy(job);
     if (m.ok) job.resolve(m.value);
     else job.reject(Object.assign(new Error(m.error.message), m.error));
+    if (job.supersede) postWaiting();
   };
   worker.onerror = (e) => {
     // A worker that cannot start (for example a served page inside a
@@ -54,6 +55,7 @@ function startWorker() {
     worker?.terminate();
     worker = null;
     for (const job of jobs) { finishBusy(job); runHere(job); }
+    postWaiting();
   };
   worker.postMessage({ kind: "init", module: sharedSolverModule });
   return worker;
@@ -101,25 +103,62 @@ function finishBusy(job) {
   if (busyJob === job) { busyJob = null; $("busy").hidden = true; }
 }
 
+const drop = (job, why) => { finishBusy(job); job.reject(Object.assign(new Error(why), { [why]: true })); };
+
 /**
- * Stop the worker and reject the jobs `drop` picks with `why`; the others
- * start again in a fresh worker.
+ * Stop the worker and reject the jobs `dropped(job)` picks with `why`; the
+ * others start again in a fresh worker.
  */
-function restartWorker(drop, why) {
+function restartWorker(dropped, why) {
   if (!worker) return;
   worker.terminate();
   worker = null;
   const jobs = [...pending.values()];
   pending.clear();
   for (const job of jobs) {
-    if (drop(job)) { finishBusy(job); job.reject(Object.assign(new Error(why), { [why]: true })); }
+    if (dropped(job)) drop(job, why);
     else post(job);
   }
 }
 
 /** Cancel what the worker is doing: it is stopped and started afresh. */
 export function cancelAll() {
+  if (waiting) { drop(waiting, "cancelled"); waiting = null; }
   restartWorker(() => true, "cancelled");
+}
+
+// Superseding jobs: at most one is out in the worker; the newest other one
+// waits here (the worker's message queue cannot be taken back).
+let waiting = null;
+let restartTimer = 0;
+
+const running = () => [...pending.values()].find((j) => j.supersede);
+
+function postWaiting() {
+  clearTimeout(restartTimer);
+  if (!waiting || running()) return;
+  const job = waiting;
+  waiting = null;
+  job.posted = performance.now();
+  post(job);
+}
+
+/**
+ * Queue superseding `job`: it goes out at once when none is out; else it
+ * waits (replacing any job waiting before it), and the one out is stopped,
+ * by restarting the worker, once it has been out for RESTART_AFTER_MS.
+ */
+function supersedeWith(job) {
+  if (waiting) drop(waiting, "superseded");
+  waiting = job;
+  const out = running();
+  if (!out) { postWaiting(); return; }
+  clearTimeout(restartTimer);
+  restartTimer = setTimeout(() => {
+    if (running() !== out) return;
+    restartWorker((j) => j === out, "superseded");
+    postWaiting();
+  }, Math.max(0, RESTART_AFTER_MS - (performance.now() - out.posted)));
 }
 
 function post(job) {
@@ -132,19 +171,15 @@ function post(job) {
 /**
  * Run a job ({ kind, ...args }, see jobs.js) in the worker. Resolves to its
  * value; rejects with the solver's error, or with { cancelled: true }. A
- * job posted with `supersede` makes every earlier one posted so obsolete
- * (the caller ignores their results): when one of those has been out for
- * over RESTART_AFTER_MS, the worker is restarted and they are rejected with
- * { superseded: true }, so that a long solve never holds up the next one.
- * (Quicker ones are left to finish: a restart costs more than they do.)
+ * job posted with `supersede` makes every earlier one so posted obsolete:
+ * one still waiting is rejected with { superseded: true }, and one running
+ * is left RESTART_AFTER_MS from its start to finish (a restart costs more
+ * than a quick solve) and then stopped the same way, by restarting the
+ * worker, so that a long solve never holds up the next one.
  */
 export function inWorker(msg, { label = "Solving…", onProgress, supersede = false } = {}) {
-  const now = performance.now();
-  if (supersede && [...pending.values()].some((j) => j.supersede && now - j.posted > RESTART_AFTER_MS)) {
-    restartWorker((j) => j.supersede, "superseded");
-  }
   return new Promise((resolve, reject) => {
-    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, supersede, posted: now, progress: null, onProgress: (d, n) => {
+    const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, supersede, posted: 0, progress: null, onProgress: (d, n) => {
       job.progress = [d, n];
       onProgress?.(d, n);
       if (busyJob === job) showProgress(job);
@@ -152,7 +187,7 @@ export function inWorker(msg, { label = "Solving…", onProgress, supersede = fa
     // Test hook: a deliberate panic armed on the page goes with the next job.
     if (globalThis.ratebookArmTestPanic === true) { globalThis.ratebookArmTestPanic = false; job.msg.armTestPanic = true; }
     showBusy(job);
-    post(job);
+    if (supersede) supersedeWith(job); else post(job);
   });
 }
 

@@ -29,7 +29,7 @@ async function ready(page) {
  */
 async function typeSheet(page, text) {
   await page.focus("#sheet");
-  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.select(); document.execCommand("insertText", false, t); }, text);
+  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.value = t; s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" })); }, text);
   await page.waitForTimeout(450);
 }
 

@@ -25,7 +25,7 @@ const sleep = (ms) => new Promise((ok) => setTimeout(ok, ms));
 
 /** Paste `text` as the sheet (one input event) and wait for its result. */
 async function paste(page, text) {
-  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.focus(); s.select(); document.execCommand("insertText", false, t); }, text);
+  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.focus(); s.value = t; s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" })); }, text);
   await sleep(400);
   await settled(page);
 }
