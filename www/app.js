@@ -15,6 +15,7 @@ import { showSummary, showTable, downloadCsv } from "./results.js";
 import { showParams } from "./params.js";
 import { autosave, loadAutosave, keepPrevious, loadPrevious, watchOtherTabs, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
 import { renderAccuracy } from "./accuracy.js";
+import { initGuide } from "./guide.js";
 
 // The page exactly as it arrived, for the single-file download (captured
 // before anything below changes the document).
@@ -386,6 +387,7 @@ function initPage() {
   $("method").replaceChildren(...METHODS.map(([id, name]) => el("option", { value: id }, name)));
   $("examples").append(...EXAMPLES.map((e) => el("option", { value: e.id }, e.title)));
   initEditor(edited);
+  initGuide();
   initRunner();
   initTimeView();
   initFieldView();

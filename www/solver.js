@@ -4,7 +4,8 @@
 // Only the Plot class (plotkit.js) is used directly; an abort inside it is
 // recovered by the guard's global handlers.
 import { initSync, solve as solveRaw, readSheet as readSheetRaw, compareMethods as compareRaw, checkAccuracy as accuracyRaw,
-  convergenceStudy as convergenceRaw, fieldView as fieldRaw, stabilitySvg as stabilityRaw, methods as methodsRaw, version as versionRaw } from "./pkg/ratebook.js";
+  convergenceStudy as convergenceRaw, fieldView as fieldRaw, stabilitySvg as stabilityRaw, methods as methodsRaw, version as versionRaw,
+  sheetLanguage as sheetLanguageRaw } from "./pkg/ratebook.js";
 import { initGuard, guarded } from "./guard.js";
 
 /** Start the solver from its compiled module (the page and each worker do this once). */
@@ -22,3 +23,4 @@ export const fieldView = guarded(fieldRaw);
 export const stabilitySvg = guarded(stabilityRaw);
 export const methods = guarded(methodsRaw);
 export const version = guarded(versionRaw);
+export const sheetLanguage = guarded(sheetLanguageRaw);
