@@ -187,8 +187,8 @@ function showSheetState() {
   const parts = [];
   if (app.hadProblem && app.good) parts.push("showing the last good result");
   if (app.autosave === "off") parts.push("autosave is off here (no storage in this frame)");
-  if (app.autosave === "failed") parts.push("not autosaved: this browser's storage is full");
-  if (app.otherTab) parts.push("also open in another tab: the autosave keeps the one edited last");
+  if (app.autosave === "failed") parts.push("not autosaved: storage full");
+  if (app.otherTab) parts.push("also open in another tab");
   $("sheet-state").textContent = parts.join(" · ");
   document.body.dataset.autosave = app.autosave;
 }

@@ -110,7 +110,7 @@ test("with the browser's storage full, an edit that cannot be autosaved says so"
     });
     await paste(page, "# this edit does not fit in the storage any more\ny' = -y\ny(0) = 1\n");
     assert.equal(await page.getAttribute("body", "data-autosave"), "failed");
-    assert.match(await page.textContent("#sheet-state"), /not autosaved: this browser's storage is full/);
+    assert.match(await page.textContent("#sheet-state"), /not autosaved: storage full/);
     assert.match(await page.textContent("#notice"), /could not be autosaved.*storage.*full.*Save/s);
     await page.screenshot({ path: join(SHOTS, "autosave-storage-full.png") });
     // Room again: the next edit is kept, and the warning goes.
