@@ -11,7 +11,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { deflateRawSync } from "node:zlib";
 import { SINGLE_FILE_URL, serveWww, launch, openPage } from "./harness.mjs";
-import { dialogText } from "./pagekit.mjs";
+import { dialogText, pasteSheet } from "./pagekit.mjs";
 
 let server, context;
 before(async () => { server = await serveWww(); context = await launch(); });
@@ -23,13 +23,8 @@ async function ready(page) {
   await page.waitForFunction(() => document.body.dataset.ready === "1", null, { timeout: 20000 });
 }
 
-/**
- * Replace the sheet as a paste does: one input event. (Playwright's fill
- * types a textarea line by line, an input event per line.)
- */
 async function typeSheet(page, text) {
-  await page.focus("#sheet");
-  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.value = t; s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" })); }, text);
+  await pasteSheet(page, text);
   await page.waitForTimeout(450);
 }
 

@@ -12,7 +12,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { deflateRawSync } from "node:zlib";
 import { ROOT, SINGLE_FILE, serveWww, launch, openPage } from "./harness.mjs";
-import { ready, settled, summaryValues } from "./pagekit.mjs";
+import { ready, settled, summaryValues, pasteSheet } from "./pagekit.mjs";
 
 const SHOTS = join(ROOT, "target", "screenshots");
 mkdirSync(SHOTS, { recursive: true });
@@ -25,7 +25,7 @@ const sleep = (ms) => new Promise((ok) => setTimeout(ok, ms));
 
 /** Paste `text` as the sheet (one input event) and wait for its result. */
 async function paste(page, text) {
-  await page.evaluate((t) => { const s = document.getElementById("sheet"); s.focus(); s.value = t; s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" })); }, text);
+  await pasteSheet(page, text);
   await sleep(400);
   await settled(page);
 }

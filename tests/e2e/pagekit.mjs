@@ -15,6 +15,19 @@ export async function settled(page) {
   await page.waitForFunction(() => document.body.dataset.settled === "1", null, { timeout: 30000 });
 }
 
+/**
+ * Replace the sheet as a paste does: the new text, then one input event.
+ * (Playwright's fill types a textarea line by line, an input event a line.)
+ */
+export function pasteSheet(page, text) {
+  return page.evaluate((t) => {
+    const s = document.getElementById("sheet");
+    s.focus();
+    s.value = t;
+    s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" }));
+  }, text);
+}
+
 /** Replace the sheet text as a user would, and wait for the page to take it up and show its result. */
 export async function setSheet(page, text) {
   await page.fill("#sheet", text);

@@ -9,7 +9,7 @@ import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
 import { deflateRawSync } from "node:zlib";
 import { serveWww, launch, openPage } from "./harness.mjs";
-import { ready, settled, summaryValues } from "./pagekit.mjs";
+import { ready, settled, summaryValues, pasteSheet } from "./pagekit.mjs";
 
 let server;
 before(async () => { server = await serveWww(); });
@@ -58,14 +58,6 @@ async function keepsAnswering(page, label, ms = 3000) {
   }
 }
 
-/** Paste `text` into the sheet (one input event, as a paste). */
-const paste = (page, text) => page.evaluate((t) => {
-  const s = document.getElementById("sheet");
-  s.focus();
-  s.value = t;
-  s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" }));
-}, text);
-
 async function applySettings(page, settings) {
   if (settings.method) await page.selectOption("#method", settings.method);
   for (const [id, v] of Object.entries(settings)) {
@@ -85,14 +77,14 @@ for (const c of CASES) {
       const { page } = await openPage(context, c.opened ? `${server.url}#${c.opened}` : server.url);
       await ready(page);
       if (c.settings) await applySettings(page, c.settings);
-      if (c.sheet) await paste(page, c.sheet);
+      if (c.sheet) await pasteSheet(page, c.sheet);
       if (c.typed) { await page.focus("#sheet"); await page.keyboard.press("Control+End"); await page.keyboard.type(c.typed, { delay: 60 }); }
       if (c.hash) await page.evaluate((h) => { location.hash = h; }, c.hash);
       await keepsAnswering(page, c.name);
       // And the page still works: an ordinary sheet solves and shows.
       await page.evaluate(() => document.getElementById("busy-cancel").click());
       await applySettings(page, { method: "auto", to: "2", rtol: "1e-6", atol: "1e-9", spacing: "" });
-      await paste(page, "# control\ny' = -y\ny(0) = 1\n");
+      await pasteSheet(page, "# control\ny' = -y\ny(0) = 1\n");
       await sleep(400);
       await settled(page);
       const y = (await summaryValues(page)).y;
