@@ -12,7 +12,7 @@
 // showAccuracyLine(sheet, settings, run, { live }) puts the verdict's one-line
 // summary above the results on the main screen: the same check, run once the
 // result settles, and shared with the Accuracy tab.
-import { stabilitySvg, version } from "./pkg/ratebook.js";
+import { stabilitySvg, version } from "./solver.js";
 import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
 import { inWorker, hasWorker } from "./runner.js";

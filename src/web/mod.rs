@@ -281,4 +281,5 @@ impl draw::Strokes for CanvasStrokes {
     }
 }
 
+mod sheet;
 mod study;
