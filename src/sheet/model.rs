@@ -275,6 +275,23 @@ impl Model {
     pub fn time_derivative_program(&mut self) -> &Program {
         self.dfdt.get_or_insert_with(|| build_dfdt(&mut self.low))
     }
+
+    /// The tape that computes the helpers' gradients, `n + 1` outputs per
+    /// helper (`∂h_m/∂y_j`, then `∂h_m/∂t`), building it on first use; see
+    /// [`Problem::helper_rates`].
+    pub fn helper_gradient_program(&mut self) -> &Program {
+        self.helper_grad.get_or_insert_with(|| build_helper_gradients(&mut self.low))
+    }
+
+    /// The helpers' rates along the solution from their gradients `grad`
+    /// (the outputs of [`helper_gradient_program`](Self::helper_gradient_program)
+    /// at `(t, y)`) and the states' rates `dy`: `∂h/∂t + Σ_j ∂h/∂y_j · dy_j`.
+    pub fn helper_rates_from(&self, grad: &[f64], dy: &[f64], out: &mut [f64]) {
+        let n = self.state_names.len();
+        for (o, row) in out.iter_mut().zip(grad.chunks_exact(n + 1)) {
+            *o = row[n] + row[..n].iter().zip(dy).map(|(g, d)| g * d).sum::<f64>();
+        }
+    }
 }
 
 fn build_jacobian(low: &mut Lowered) -> Program {
@@ -355,11 +372,11 @@ impl Problem for Model {
     fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
         let n = self.state_names.len();
         let grad = self.helper_grad.get_or_insert_with(|| build_helper_gradients(&mut self.low));
-        self.grad_buf.resize(out.len() * (n + 1), 0.0);
-        grad.eval(t, y, &mut self.grad_buf);
-        for (o, row) in out.iter_mut().zip(self.grad_buf.chunks_exact(n + 1)) {
-            *o = row[n] + row[..n].iter().zip(dy).map(|(g, d)| g * d).sum::<f64>();
-        }
+        let mut buf = std::mem::take(&mut self.grad_buf);
+        buf.resize(out.len() * (n + 1), 0.0);
+        grad.eval(t, y, &mut buf);
+        self.helper_rates_from(&buf, dy, out);
+        self.grad_buf = buf;
         true
     }
 

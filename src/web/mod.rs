@@ -6,6 +6,8 @@ use wasm_bindgen::prelude::*;
 use crate::{api, draw};
 
 #[cfg(feature = "bench")]
+mod bench_call;
+#[cfg(feature = "bench")]
 mod bench_emit;
 mod bench_stiff;
 mod emit;
@@ -74,15 +76,13 @@ pub fn solve(sheet: JsValue, settings: JsValue) -> Result<JsValue, JsValue> {
     // number or an object.
     let sheet = sheet.as_string().ok_or_else(|| error_with("the sheet must be a string", &[]))?;
     let sheet = sheet.as_str();
-    let req: api::RunRequest = if settings.is_undefined() || settings.is_null() {
-        api::RunRequest::default()
-    } else {
-        serde_wasm_bindgen::from_value(settings).map_err(|e| error_with(&format!("settings: {e}"), &[]))?
-    };
+    let req: api::RunRequest = request(settings, "settings")?;
     let run = api::solve(sheet, &req).map_err(api_error)?;
     to_js(&run)
 }
 
+/// A request object (settings of a run, of a comparison, …) from JS; the
+/// defaults for `undefined` or `null`.
 fn request<T: serde::de::DeserializeOwned + Default>(v: JsValue, what: &str) -> Result<T, JsValue> {
     if v.is_undefined() || v.is_null() {
         Ok(T::default())
