@@ -46,10 +46,10 @@ pub fn bench_repeat(problem: &str, method: &str, rtol: f64, atol: f64, repeats: 
         run = crate::solve::solve(model.as_mut(), p.t0, &p.y0, &settings).ok()?;
     }
     let y: Vec<f64> = run.states.iter().map(|s| s.last().copied().unwrap_or(f64::NAN)).collect();
+    // A failure by its code (`max-steps`, …), so that a table tells them apart.
     let status = match &run.status {
-        crate::solve::Status::Finished => "finished".to_string(),
-        crate::solve::Status::Stopped { .. } => "stopped".to_string(),
-        crate::solve::Status::Failed(e) => e.code().to_string(),
+        crate::solve::Status::Failed(e) => e.code(),
+        s => s.word(),
     };
     let switches = run.diagnostics.iter().filter(|d| d.code == "method-switch").count();
     let mut v = serde_json::to_value(run.stats).ok()?;

@@ -239,6 +239,29 @@ impl Model {
         true
     }
 
+    /// Set several parameters at once: the same model as
+    /// [`set_param`](Self::set_param) on each in turn, with at most one
+    /// recompilation. Returns the first name that is not a parameter (and
+    /// then changes nothing).
+    pub fn set_params<'a>(&mut self, values: &[(&'a str, f64)]) -> Result<(), &'a str> {
+        if let Some((name, _)) = values.iter().find(|(n, _)| !self.params.iter().any(|p| p.name == *n)) {
+            return Err(name);
+        }
+        let mut folded = false;
+        for &(name, value) in values {
+            if self.live.iter().any(|l| l == name) {
+                self.set_param(name, value);
+            } else {
+                self.values.insert(name.to_string(), value);
+                folded = true;
+            }
+        }
+        if folded {
+            self.recompile();
+        }
+        Ok(())
+    }
+
     /// Evaluate every rate and then every helper in one call:
     /// `out[..dim]` gets the rates, `out[dim..]` the helpers in the order of
     /// [`Problem::helper_names`].

@@ -81,6 +81,8 @@ pub fn bench_call_parts(sheet_js: JsValue, settings: JsValue, reps: u32) -> Resu
     let mut warm = EmittedModel::new(model.clone());
     let run = solve(&mut warm)?;
     part("solve, model already run", time(reps, || (), |_| solve(&mut warm)));
+    let bare = crate::solve::Settings { extrema: false, ..s.clone() };
+    part("solve, model already run, no extrema", time(reps, || (), |_| crate::solve::solve(&mut warm, t0, &y0, &bare).is_ok()));
     part("report", time(reps, || run.clone(), |r| api::report(&model, &s.method, r)));
     let report = api::report(&model, &s.method, run);
     part("report to JS", time(reps, || (), |_| to_js(&report)));
