@@ -46,23 +46,30 @@ if (process.argv[2] === "cold") {
     let a = now();
     rb.bench_stiff_run(c.problem, c.method, c.rtol, c.atol, 1);
     const repeats = Math.min(10000, Math.max(1, Math.ceil(2 / Math.max(now() - a, 1e-6))));
-    // Interleaved: one user call, one compiled-in call, until both had 150 ms
-    // and at least 9 samples each.
-    const user = [], inside = [];
+    // Interleaved: one user call, one without extrema (the compiled-in
+    // problem's work: it locates none), one compiled-in call, until they had
+    // 300 ms and at least 9 samples each.
+    const bare = { ...s, extrema: false };
+    let plain = rb.solve(c.sheet, bare);
+    const user = [], noExtrema = [], inside = [];
     let spent = 0;
     while (user.length < 9 || (spent < 300 && user.length < 2000)) {
       a = now();
       run = rb.solve(c.sheet, s);
       const b = now();
+      plain = rb.solve(c.sheet, bare);
+      const b2 = now();
       compiled = JSON.parse(rb.bench_stiff_run(c.problem, c.method, c.rtol, c.atol, repeats));
       const d = now();
       user.push(b - a);
-      inside.push((d - b) / repeats);
+      noExtrema.push(b2 - b);
+      inside.push((d - b2) / repeats);
       spent += d - a;
     }
     rows.push({
       problem: c.problem, method: c.method, rtol: c.rtol, atol: c.atol, stiff: c.stiff,
-      userMs: median(user), userBestMs: Math.min(...user), compiledMs: median(inside), samples: user.length,
+      userMs: median(user), userBestMs: Math.min(...user), noExtremaMs: median(noExtrema), noExtremaStats: plain.stats,
+      compiledMs: median(inside), samples: user.length,
       status: run.status, y: endState(run), stats: run.stats, points: run.t.length,
       compiledStats: { rhsEvals: compiled.rhsEvals, steps: compiled.steps, rejected: compiled.rejected,
         jacobians: compiled.jacobians, factorizations: compiled.factorizations }, compiledY: compiled.y,
