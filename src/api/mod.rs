@@ -183,20 +183,22 @@ pub fn settings(req: &RunRequest) -> Settings {
 
 /// Compile `sheet` and apply the request's parameter overrides.
 pub fn model(sheet_text: &str, req: &RunRequest) -> Result<Model, ApiError> {
-    let mut m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
-    with_params(&mut m, req)?;
-    Ok(m)
+    let m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
+    if req.params.is_none() {
+        return Ok(m);
+    }
+    overridden(&m, req)
 }
 
-/// Apply the request's parameter overrides to `m` (one recompilation).
-fn with_params(m: &mut Model, req: &RunRequest) -> Result<(), ApiError> {
-    let Some(params) = &req.params else { return Ok(()) };
+/// `m` with the request's parameter overrides (`m` itself when there are none).
+fn overridden(m: &Model, req: &RunRequest) -> Result<Model, ApiError> {
+    let Some(params) = &req.params else { return Ok(m.clone()) };
     let invalid = |reason: String| ApiError::Settings(SolveError::InvalidSettings { field: "params", reason });
     if let Some((name, _)) = params.iter().find(|(_, v)| !v.is_finite()) {
         return Err(invalid(format!("the value given for `{name}` is not a finite number")));
     }
     let values: Vec<(&str, f64)> = params.iter().map(|(n, &v)| (n.as_str(), v)).collect();
-    m.set_params(&values).map_err(|name| invalid(format!("the sheet has no parameter named `{name}`")))
+    m.with_params(&values).map_err(|name| invalid(format!("the sheet has no parameter named `{name}`")))
 }
 
 /// Solve `sheet` with `req`.
@@ -213,11 +215,16 @@ pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> 
     let mut p = match ready {
         Some(p) => p,
         None => {
-            let base = CACHE.with(|c| c.borrow_mut().base(sheet_text)).map_or_else(|| sheet::compile(sheet_text), Ok);
-            let base = base.map_err(ApiError::Sheet)?;
-            CACHE.with(|c| c.borrow_mut().keep_base(sheet_text, &base));
-            let mut m = base;
-            with_params(&mut m, req)?;
+            let kept = CACHE.with(|c| c.borrow_mut().base(sheet_text, |m| overridden(m, req)));
+            let m = match kept {
+                Some(m) => m?,
+                None => {
+                    let base = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
+                    let m = overridden(&base, req);
+                    CACHE.with(|c| c.borrow_mut().keep_base(sheet_text, base));
+                    m?
+                }
+            };
             crate::emit::EmittedModel::new(m)
         }
     };
@@ -243,18 +250,18 @@ struct Cache {
 type ReadyKey = (String, Vec<(String, u64)>, bool);
 
 impl Cache {
-    fn base(&mut self, text: &str) -> Option<Model> {
-        self.base.iter().find(|(t, _)| t == text).map(|(_, m)| m.clone())
+    /// `make` of the base model kept for `text` (moved to the front), if any.
+    fn base<R>(&mut self, text: &str, make: impl FnOnce(&Model) -> R) -> Option<R> {
+        let k = self.base.iter().position(|(t, _)| t == text)?;
+        let e = self.base.remove(k);
+        let made = make(&e.1);
+        self.base.insert(0, e);
+        Some(made)
     }
 
-    fn keep_base(&mut self, text: &str, m: &Model) {
-        if let Some(k) = self.base.iter().position(|(t, _)| t == text) {
-            let e = self.base.remove(k);
-            self.base.insert(0, e);
-        } else {
-            self.base.insert(0, (text.to_string(), m.clone()));
-            self.base.truncate(KEPT);
-        }
+    fn keep_base(&mut self, text: &str, m: Model) {
+        self.base.insert(0, (text.to_string(), m));
+        self.base.truncate(KEPT);
     }
 
     fn take_ready(&mut self, text: &str, overrides: &[(String, u64)], emitting: bool) -> Option<crate::emit::EmittedModel<Model>> {

@@ -262,6 +262,25 @@ impl Model {
         Ok(())
     }
 
+    /// This model with parameter values replaced, made from its checked
+    /// sheet in one lowering: the same model as a clone on which
+    /// [`set_params`](Self::set_params) is called, without copying the
+    /// compiled tapes first. Returns the first name that is not a parameter.
+    pub fn with_params<'a>(&self, values: &[(&'a str, f64)]) -> Result<Model, &'a str> {
+        if !self.live.is_empty() {
+            let mut m = self.clone();
+            m.set_params(values)?;
+            return Ok(m);
+        }
+        if let Some((name, _)) = values.iter().find(|(n, _)| !self.params.iter().any(|p| p.name == *n)) {
+            return Err(name);
+        }
+        let mut vals = self.values.clone();
+        vals.extend(values.iter().map(|&(n, v)| (n.to_string(), v)));
+        let low = lower(&self.sheet, &self.live, &vals);
+        Ok(Model::assemble(self.sheet.clone(), Vec::new(), vals, low, self.state_names.clone(), self.events.clone()))
+    }
+
     /// Evaluate every rate and then every helper in one call:
     /// `out[..dim]` gets the rates, `out[dim..]` the helpers in the order of
     /// [`Problem::helper_names`].
