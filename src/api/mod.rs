@@ -47,6 +47,11 @@ pub struct RunRequest {
     pub max_step: Option<f64>,
     /// Parameter values that replace the sheet's, by name (sliders, sweeps).
     pub params: Option<std::collections::BTreeMap<String, f64>>,
+    /// Locate the peak and trough of every state and helper (default
+    /// `true`). `false` leaves `extrema` empty and skips their search, which
+    /// is much of a run's cost for a cheap model (a sweep that needs only
+    /// end values or event times).
+    pub extrema: Option<bool>,
 }
 
 /// Read a list of output times, refusing more than the solver could ever
@@ -226,53 +231,130 @@ pub fn settings(req: &RunRequest) -> Settings {
         max_events: count(req.max_events, d.max_events as u64) as usize,
         first_step: req.first_step,
         max_step: req.max_step,
-        ..d
+        extrema: req.extrema.unwrap_or(d.extrema),
     }
 }
 
 /// Compile `sheet` and apply the request's parameter overrides.
 pub fn model(sheet_text: &str, req: &RunRequest) -> Result<Model, ApiError> {
-    let mut m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
-    if let Some(params) = &req.params {
-        for (name, &value) in params {
-            if !value.is_finite() {
-                return Err(ApiError::Settings(SolveError::InvalidSettings {
-                    field: "params",
-                    reason: format!("the value given for `{name}` is not a finite number"),
-                }));
-            }
-            if !m.set_param(name, value) {
-                return Err(ApiError::Settings(SolveError::InvalidSettings {
-                    field: "params",
-                    reason: format!("the sheet has no parameter named `{name}`"),
-                }));
-            }
-        }
+    let m = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
+    if req.params.is_none() {
+        return Ok(m);
     }
-    Ok(m)
+    overridden(&m, req)
+}
+
+/// `m` with the request's parameter overrides (`m` itself when there are none).
+fn overridden(m: &Model, req: &RunRequest) -> Result<Model, ApiError> {
+    let Some(params) = &req.params else { return Ok(m.clone()) };
+    let invalid = |reason: String| ApiError::Settings(SolveError::InvalidSettings { field: "params", reason });
+    if let Some((name, _)) = params.iter().find(|(_, v)| !v.is_finite()) {
+        return Err(invalid(format!("the value given for `{name}` is not a finite number")));
+    }
+    let values: Vec<(&str, f64)> = params.iter().map(|(n, &v)| (n.as_str(), v)).collect();
+    m.with_params(&values).map_err(|name| invalid(format!("the sheet has no parameter named `{name}`")))
 }
 
 /// Solve `sheet` with `req`.
+///
+/// The compiled sheets of the last few calls are kept ([`KEPT`]): a call
+/// with the same sheet text skips parsing and lowering, and one with the same
+/// text and parameter values also reuses the emitted module. A kept model
+/// gives the same results, bit for bit, as a freshly compiled one.
 pub fn solve(sheet_text: &str, req: &RunRequest) -> Result<RunReport, ApiError> {
-    let mut m = model(sheet_text, req)?;
-    run_model(&mut m, req)
+    let overrides: Vec<(String, u64)> =
+        req.params.iter().flatten().map(|(n, v)| (n.clone(), v.to_bits())).collect();
+    let emitting = crate::emit::model::available();
+    let ready = CACHE.with(|c| c.borrow_mut().take_ready(sheet_text, &overrides, emitting));
+    let mut p = match ready {
+        Some(p) => p,
+        None => {
+            let kept = CACHE.with(|c| c.borrow_mut().base(sheet_text, |m| overridden(m, req)));
+            let m = match kept {
+                Some(m) => m?,
+                None => {
+                    let base = sheet::compile(sheet_text).map_err(ApiError::Sheet)?;
+                    let m = overridden(&base, req);
+                    CACHE.with(|c| c.borrow_mut().keep_base(sheet_text, base));
+                    m?
+                }
+            };
+            crate::emit::EmittedModel::new(m)
+        }
+    };
+    let result = run_emitted(&mut p, req);
+    CACHE.with(|c| c.borrow_mut().keep_ready(sheet_text, overrides, emitting, p));
+    result
 }
 
-/// Solve an already compiled model with `req`.
-pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
+/// How many compiled sheets [`solve`] keeps, of each kind.
+pub const KEPT: usize = 8;
+
+/// The compiled sheets of the last calls of [`solve`], most recent first:
+/// base models by sheet text, and ready (emitted) models by text, parameter
+/// values and whether they were made emitting.
+#[derive(Default)]
+struct Cache {
+    base: Vec<(String, Model)>,
+    ready: Vec<(ReadyKey, crate::emit::EmittedModel<Model>)>,
+}
+
+/// A ready model's key: the sheet text, the parameter values (as bits) and
+/// whether it was made emitting.
+type ReadyKey = (String, Vec<(String, u64)>, bool);
+
+impl Cache {
+    /// `make` of the base model kept for `text` (moved to the front), if any.
+    fn base<R>(&mut self, text: &str, make: impl FnOnce(&Model) -> R) -> Option<R> {
+        let k = self.base.iter().position(|(t, _)| t == text)?;
+        let e = self.base.remove(k);
+        let made = make(&e.1);
+        self.base.insert(0, e);
+        Some(made)
+    }
+
+    fn keep_base(&mut self, text: &str, m: Model) {
+        self.base.insert(0, (text.to_string(), m));
+        self.base.truncate(KEPT);
+    }
+
+    fn take_ready(&mut self, text: &str, overrides: &[(String, u64)], emitting: bool) -> Option<crate::emit::EmittedModel<Model>> {
+        let k = self.ready.iter().position(|((t, o, e), _)| t == text && o == overrides && *e == emitting)?;
+        Some(self.ready.remove(k).1)
+    }
+
+    fn keep_ready(&mut self, text: &str, overrides: Vec<(String, u64)>, emitting: bool, m: crate::emit::EmittedModel<Model>) {
+        self.ready.insert(0, ((text.to_string(), overrides, emitting), m));
+        self.ready.truncate(KEPT);
+    }
+}
+
+thread_local! {
+    static CACHE: std::cell::RefCell<Cache> = std::cell::RefCell::new(Cache::default());
+}
+
+fn check_counts(req: &RunRequest) -> Result<(), ApiError> {
     for (field, v) in [("max_steps", req.max_steps), ("max_output", req.max_output), ("max_events", req.max_events)] {
         if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
             return Err(ApiError::Settings(SolveError::InvalidSettings { field, reason: "must be a number ≥ 0".to_string() }));
         }
     }
-    let s = settings(req);
-    let (t0, y0) = (m.t0(), m.initial_state().to_vec());
+    Ok(())
+}
+
+/// Solve an already compiled model with `req`.
+pub fn run_model(m: &mut Model, req: &RunRequest) -> Result<RunReport, ApiError> {
     // In the page the formulas run as an emitted wasm module; elsewhere, or
     // when the page may not compile one, on the interpreter.
-    let mut p = crate::emit::EmittedModel::new(&mut *m);
-    let run = solve::solve(&mut p, t0, &y0, &s).map_err(ApiError::Settings)?;
-    drop(p);
-    Ok(report(m, &s.method, run))
+    run_emitted(&mut crate::emit::EmittedModel::new(&mut *m), req)
+}
+
+fn run_emitted<M: std::borrow::BorrowMut<Model>>(p: &mut crate::emit::EmittedModel<M>, req: &RunRequest) -> Result<RunReport, ApiError> {
+    check_counts(req)?;
+    let s = settings(req);
+    let (t0, y0) = (p.model().t0(), p.model().initial_state().to_vec());
+    let run = solve::solve(p, t0, &y0, &s).map_err(ApiError::Settings)?;
+    Ok(report(p.model(), &s.method, run))
 }
 
 /// The JS shape of a run of `m`.
@@ -289,21 +371,11 @@ pub fn report(m: &Model, method: &str, run: Run) -> RunReport {
         .into_iter()
         .map(|d| DiagnosticReport { level: d.level, code: d.code, message: d.message, t: d.t })
         .collect();
-    let extrema = run
-        .extrema
-        .into_iter()
-        .map(|x| {
-            for (v, t) in [(x.max, x.t_max), (x.min, x.t_min)].into_iter().filter(|(v, _)| v.is_infinite()) {
-                diagnostics.push(overflowed(&x.name, v, t, m.independent()));
-            }
-            let finite = |v: f64| v.is_finite().then_some(v);
-            ExtremumReport { name: x.name, max: finite(x.max), t_max: x.t_max, min: finite(x.min), t_min: x.t_min }
-        })
-        .collect();
-    let (status, error, reached) = match &run.status {
-        Status::Finished => ("finished", None, None),
-        Status::Stopped { .. } => ("stopped", None, stop_t),
-        Status::Failed(e) => ("failed", Some(e.to_string()), e.time()),
+    let status = run.status.word();
+    let (error, reached) = match &run.status {
+        Status::Finished => (None, None),
+        Status::Stopped { .. } => (None, stop_t),
+        Status::Failed(e) => (Some(e.to_string()), e.time()),
     };
     RunReport {
         independent: m.independent().to_string(),
@@ -337,5 +409,70 @@ fn overflowed(name: &str, v: f64, t: f64, independent: &str) -> DiagnosticReport
             solve::num(t)
         ),
         t: Some(t),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every number and word of a report, for a bitwise comparison (`{:?}`
+    /// prints each f64 exactly, NaN and signed zeros included).
+    fn exact(r: &RunReport) -> String {
+        format!("{r:?}")
+    }
+
+    #[test]
+    fn kept_models_give_the_results_of_fresh_ones_bit_for_bit() {
+        // A sheet with helpers, a switch, an event and a parameter, on an
+        // explicit and a stiff method (whose Jacobian tapes a kept model has
+        // built already); our own scenario.
+        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*step(t - 2)\nh(0) = 3\nmark when h < 1\n";
+        for method in ["dp54", "auto", "radau5"] {
+            let req = RunRequest { to: Some(10.0), method: Some(method.into()), ..Default::default() };
+            let fresh = run_model(&mut model(sheet, &req).unwrap(), &req).unwrap();
+            for _ in 0..3 {
+                assert_eq!(exact(&solve(sheet, &req).unwrap()), exact(&fresh), "{method}");
+            }
+            // New parameter values: a kept base model, recompiled with them.
+            for k in [0.5, 0.8, 1.25] {
+                let p = RunRequest { params: Some([("k".to_string(), k)].into()), ..req.clone() };
+                let fresh = run_model(&mut model(sheet, &p).unwrap(), &p).unwrap();
+                assert_eq!(exact(&solve(sheet, &p).unwrap()), exact(&fresh), "{method} k = {k}");
+            }
+        }
+        // More sheets than are kept, then the first again.
+        for n in 0..KEPT + 2 {
+            let s = format!("y' = -{}*y\ny(0) = 1\n", n + 1);
+            let req = RunRequest { to: Some(1.0), ..Default::default() };
+            assert_eq!(exact(&solve(&s, &req).unwrap()), exact(&run_model(&mut model(&s, &req).unwrap(), &req).unwrap()));
+        }
+    }
+
+    #[test]
+    fn a_run_without_extrema_takes_the_same_steps_and_reports_none() {
+        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*step(t - 2)\nh(0) = 3\nmark when h < 1\n";
+        for method in ["dp54", "dp853", "auto"] {
+            let req = RunRequest { to: Some(10.0), method: Some(method.into()), ..Default::default() };
+            let with = solve(sheet, &req).unwrap();
+            let without = solve(sheet, &RunRequest { extrema: Some(false), ..req.clone() }).unwrap();
+            assert_eq!(with.extrema.len(), 2);
+            assert!(without.extrema.is_empty());
+            assert_eq!(format!("{:?}", (&with.t, &with.values, &with.events)), format!("{:?}", (&without.t, &without.values, &without.events)), "{method}");
+            assert_eq!(with.stats.steps, without.stats.steps);
+        }
+    }
+
+    #[test]
+    fn errors_are_the_same_through_kept_models() {
+        let sheet = "k = 1\ny' = -k*y\ny(0) = 1\n";
+        let req = RunRequest { to: Some(1.0), ..Default::default() };
+        solve(sheet, &req).unwrap();
+        let unknown = RunRequest { params: Some([("c".to_string(), 1.0)].into()), ..req.clone() };
+        assert!(matches!(solve(sheet, &unknown), Err(ApiError::Settings(SolveError::InvalidSettings { field: "params", .. }))));
+        let bad = RunRequest { max_steps: Some(-1.0), ..req.clone() };
+        assert!(matches!(solve(sheet, &bad), Err(ApiError::Settings(SolveError::InvalidSettings { field: "max_steps", .. }))));
+        assert!(matches!(solve("y' = \n", &req), Err(ApiError::Sheet(_))));
+        assert_eq!(exact(&solve(sheet, &req).unwrap()), exact(&run_model(&mut model(sheet, &req).unwrap(), &req).unwrap()));
     }
 }

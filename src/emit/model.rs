@@ -142,7 +142,8 @@ const DERIVATIVES: [&str; 2] = ["jacobian", "dfdt"];
 /// that recompiles the sheet (a new live set, a folded parameter). Live
 /// parameters are read from the tapes' own memory, so changing one
 /// ([`set_param`](Self::set_param)) needs no new module. The Jacobian and
-/// `∂f/∂t` get a second module the first time they are asked for.
+/// `∂f/∂t` get a second module the first time they are asked for, and the
+/// helpers' gradients (their rates, for their peaks and troughs) a third.
 pub struct EmittedModel<M: BorrowMut<Model> = Model> {
     model: M,
     main: Option<Kernels>,
@@ -154,8 +155,12 @@ pub struct EmittedModel<M: BorrowMut<Model> = Model> {
     derivatives_tried: bool,
     /// The RK4 stepper, once asked for; `None` inside when it could not be made.
     stepper: Option<Option<Kernels>>,
+    /// The helpers' gradients (for their rates, which locate their peaks and
+    /// troughs), once asked for; `None` inside when they could not be emitted.
+    helper_gradients: Option<Option<(Kernels, Direct)>>,
     loads: u32,
     scratch: Vec<f64>,
+    gradients: Vec<f64>,
 }
 
 impl<M: BorrowMut<Model>> EmittedModel<M> {
@@ -170,8 +175,10 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
             derivative_direct: Vec::new(),
             derivatives_tried: false,
             stepper: None,
+            helper_gradients: None,
             loads: 0,
             scratch: Vec::new(),
+            gradients: Vec::new(),
         };
         m.reload();
         m
@@ -184,6 +191,7 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         self.derivative_direct.clear();
         self.derivatives_tried = false;
         self.stepper = None;
+        self.helper_gradients = None;
         let m: &Model = self.model.borrow();
         self.main = load(&MAIN, &[m.rhs_program(), m.all_program(), m.event_program(), m.switch_program()]);
         self.loads += u32::from(self.main.is_some());
@@ -199,8 +207,9 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
         self.main.is_some()
     }
 
-    /// How many modules were emitted and loaded for this model so far (one
-    /// for the rates and one for the derivatives per compilation of the sheet).
+    /// How many modules were emitted and loaded for this model so far (per
+    /// compilation of the sheet: one for the rates, one for the derivatives
+    /// and one for the helpers' gradients, each when first needed).
     pub fn loads(&self) -> u32 {
         self.loads
     }
@@ -290,6 +299,28 @@ impl<M: BorrowMut<Model>> EmittedModel<M> {
     }
 }
 
+impl<M: BorrowMut<Model>> EmittedModel<M> {
+    /// The helpers' gradients at `(t, y)` into `self.gradients` through their
+    /// own module, emitted on first use (after the main module, never
+    /// without it); `false` when they do not run emitted.
+    fn emitted_helper_gradients(&mut self, t: f64, y: &[f64]) -> bool {
+        if self.helper_gradients.is_none() && self.main.is_some() {
+            let m: &mut Model = self.model.borrow_mut();
+            let dim = m.dim();
+            let p = m.helper_gradient_program();
+            let made = load(&["helper_gradients"], &[p]).map(|k| {
+                let d = Direct::new(k.kernel(0), p, dim);
+                (k, d)
+            });
+            self.loads += u32::from(made.is_some());
+            self.helper_gradients = Some(made);
+        }
+        let Some(Some((_, d))) = &self.helper_gradients else { return false };
+        self.gradients.resize(d.outputs, 0.0);
+        d.run(t, y, &mut self.gradients)
+    }
+}
+
 impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     fn dim(&self) -> usize {
         self.model.borrow().dim()
@@ -331,6 +362,10 @@ impl<M: BorrowMut<Model>> Problem for EmittedModel<M> {
     }
 
     fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
+        if self.emitted_helper_gradients(t, y) {
+            self.model.borrow().helper_rates_from(&self.gradients, dy, out);
+            return true;
+        }
         self.model.borrow_mut().helper_rates(t, y, dy, out)
     }
 

@@ -46,10 +46,10 @@ pub fn bench_repeat(problem: &str, method: &str, rtol: f64, atol: f64, repeats: 
         run = crate::solve::solve(model.as_mut(), p.t0, &p.y0, &settings).ok()?;
     }
     let y: Vec<f64> = run.states.iter().map(|s| s.last().copied().unwrap_or(f64::NAN)).collect();
+    // A failure by its code (`max-steps`, …), so that a table tells them apart.
     let status = match &run.status {
-        crate::solve::Status::Finished => "finished".to_string(),
-        crate::solve::Status::Stopped { .. } => "stopped".to_string(),
-        crate::solve::Status::Failed(e) => e.code().to_string(),
+        crate::solve::Status::Failed(e) => e.code(),
+        s => s.word(),
     };
     let switches = run.diagnostics.iter().filter(|d| d.code == "method-switch").count();
     let mut v = serde_json::to_value(run.stats).ok()?;
@@ -58,6 +58,43 @@ pub fn bench_repeat(problem: &str, method: &str, rtol: f64, atol: f64, repeats: 
     obj.insert("y".into(), y.into());
     obj.insert("switches".into(), switches.into());
     Some(v)
+}
+
+/// The Arenstorf orbit as a user writes it: the two distances cubed are
+/// helpers (so the run also reports them, with their peaks and troughs).
+pub const ARENSTORF_SHEET: &str = "# A light body on a closed orbit about two heavy ones
+mu = 0.012277471
+m = 1 - mu
+r1 = ((x + mu)*(x + mu) + y*y)^1.5
+r2 = ((x - m)*(x - m) + y*y)^1.5
+x' = vx
+y' = vy
+vx' = x + 2*vy - m*(x + mu)/r1 - mu*(x - m)/r2
+vy' = y - 2*vx - m*y/r1 - mu*y/r2
+x(0) = 0.994
+y(0) = 0
+vx(0) = 0
+vy(0) = -2.00158510637908252240537862224
+";
+
+/// A problem of the shared set written as a sheet, with the same formulas
+/// in the same order of operations as its hand-written rates (so that both
+/// take the same steps), for the benchmarks of the user path (`solve()` on
+/// sheet text). `None` for a problem without one.
+pub fn sheet(problem: &str) -> Option<&'static str> {
+    Some(match problem {
+        "logistic" => "y' = y*(1 - y/10)\ny(0) = 0.5\n",
+        "cooling" => "T' = -0.5*(T - (20 + 5*sin(2*t)))\nT(0) = 90\n",
+        "oscillator" => "x' = v\nv' = cos(1.5*t) - 0.4*v - 4*x\nx(0) = 1\nv(0) = 0\n",
+        "arenstorf" => ARENSTORF_SHEET,
+        "lorenz" => "x' = 10*(y - x)\ny' = x*(28 - z) - y\nz' = x*y - 8/3*z\nx(0) = 1\ny(0) = 1\nz(0) = 1\n",
+        "brusselator" => "x' = 1 + x*x*y - 4*x\ny' = 3*x - x*x*y\nx(0) = 1.5\ny(0) = 3\n",
+        "pendulum" => "theta' = omega\nomega' = -9.81/2*sin(theta)\ntheta(0) = 2.5\nomega(0) = 0\n",
+        "van_der_pol_1000" => "mu = 1000\ny1' = y2\ny2' = mu*(1 - y1*y1)*y2 - y1\ny1(0) = 2\ny2(0) = 0\n",
+        "robertson" => "y1' = -(0.04*y1) + 1e4*y2*y3\ny2' = 0.04*y1 - 1e4*y2*y3 - 3e7*y2*y2\ny3' = 3e7*y2*y2\n\
+                        y1(0) = 1\ny2(0) = 0\ny3(0) = 0\n",
+        _ => return None,
+    })
 }
 
 #[cfg(test)]
@@ -76,5 +113,42 @@ mod tests {
         assert_eq!(one["status"], "finished");
         assert!(bench_run("no-such-problem", "dp54", 1e-6, 1e-6).is_none());
         assert!(bench_run("logistic", "no-such-method", 1e-6, 1e-6).is_none());
+    }
+
+    #[test]
+    fn sheets_take_the_steps_of_the_hand_written_rates() {
+        // Each sheet against its problem's hand-written rates: the same steps
+        // and evaluations (the user-path bench compares them per step), and
+        // end states equal to rounding.
+        let cases = [
+            ("oscillator", "dp54", 1e-6),
+            ("arenstorf", "dp853", 1e-9),
+            ("lorenz", "dp54", 1e-6),
+            ("brusselator", "bs32", 1e-6),
+            ("van_der_pol_1000", "radau5", 1e-6),
+            ("robertson", "rodas4", 1e-6),
+            ("robertson", "auto", 1e-8),
+        ];
+        for (name, method, tol) in cases {
+            let p = super::super::by_name(name).unwrap();
+            let atol = if name == "robertson" { tol * 1e-4 } else { tol };
+            let settings = crate::solve::Settings {
+                method: method.into(),
+                to: p.t_end,
+                tol: crate::solve::Tolerance { rtol: tol, atol },
+                extrema: false,
+                ..Default::default()
+            };
+            let hand = crate::solve::solve((p.make)().as_mut(), p.t0, &p.y0, &settings).unwrap();
+            let mut model = crate::sheet::compile(sheet(name).unwrap()).unwrap();
+            assert_eq!((model.t0(), model.initial_state()), (p.t0, &p.y0[..]), "{name}");
+            let typed = crate::solve::solve(&mut model, p.t0, &p.y0, &settings).unwrap();
+            let counts = |r: &crate::solve::Run| (r.stats.steps, r.stats.rhs_evals, r.stats.rejected);
+            assert_eq!(counts(&typed), counts(&hand), "{name} {method}");
+            for (a, b) in typed.states.iter().zip(&hand.states) {
+                let (a, b) = (a.last().unwrap(), b.last().unwrap());
+                assert!((a - b).abs() <= 1e-9 * b.abs().max(1e-6), "{name}: {a} against {b}");
+            }
+        }
     }
 }

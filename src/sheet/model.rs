@@ -240,6 +240,48 @@ impl Model {
         true
     }
 
+    /// Set several parameters at once: the same model as
+    /// [`set_param`](Self::set_param) on each in turn, with at most one
+    /// recompilation. Returns the first name that is not a parameter (and
+    /// then changes nothing).
+    pub fn set_params<'a>(&mut self, values: &[(&'a str, f64)]) -> Result<(), &'a str> {
+        if let Some((name, _)) = values.iter().find(|(n, _)| !self.params.iter().any(|p| p.name == *n)) {
+            return Err(name);
+        }
+        let mut folded = false;
+        for &(name, value) in values {
+            if self.live.iter().any(|l| l == name) {
+                self.set_param(name, value);
+            } else {
+                self.values.insert(name.to_string(), value);
+                folded = true;
+            }
+        }
+        if folded {
+            self.recompile();
+        }
+        Ok(())
+    }
+
+    /// This model with parameter values replaced, made from its checked
+    /// sheet in one lowering: the same model as a clone on which
+    /// [`set_params`](Self::set_params) is called, without copying the
+    /// compiled tapes first. Returns the first name that is not a parameter.
+    pub fn with_params<'a>(&self, values: &[(&'a str, f64)]) -> Result<Model, &'a str> {
+        if !self.live.is_empty() {
+            let mut m = self.clone();
+            m.set_params(values)?;
+            return Ok(m);
+        }
+        if let Some((name, _)) = values.iter().find(|(n, _)| !self.params.iter().any(|p| p.name == *n)) {
+            return Err(name);
+        }
+        let mut vals = self.values.clone();
+        vals.extend(values.iter().map(|&(n, v)| (n.to_string(), v)));
+        let low = lower(&self.sheet, &self.live, &vals);
+        Ok(Model::assemble(self.sheet.clone(), Vec::new(), vals, low, self.state_names.clone(), self.events.clone()))
+    }
+
     /// Evaluate every rate and then every helper in one call:
     /// `out[..dim]` gets the rates, `out[dim..]` the helpers in the order of
     /// [`Problem::helper_names`].
@@ -275,6 +317,23 @@ impl Model {
     /// The tape that computes `∂f/∂t` (building it on first use).
     pub fn time_derivative_program(&mut self) -> &Program {
         self.dfdt.get_or_insert_with(|| build_dfdt(&mut self.low))
+    }
+
+    /// The tape that computes the helpers' gradients, `n + 1` outputs per
+    /// helper (`∂h_m/∂y_j`, then `∂h_m/∂t`), building it on first use; see
+    /// [`Problem::helper_rates`].
+    pub fn helper_gradient_program(&mut self) -> &Program {
+        self.helper_grad.get_or_insert_with(|| build_helper_gradients(&mut self.low))
+    }
+
+    /// The helpers' rates along the solution from their gradients `grad`
+    /// (the outputs of [`helper_gradient_program`](Self::helper_gradient_program)
+    /// at `(t, y)`) and the states' rates `dy`: `∂h/∂t + Σ_j ∂h/∂y_j · dy_j`.
+    pub fn helper_rates_from(&self, grad: &[f64], dy: &[f64], out: &mut [f64]) {
+        let n = self.state_names.len();
+        for (o, row) in out.iter_mut().zip(grad.chunks_exact(n + 1)) {
+            *o = row[n] + row[..n].iter().zip(dy).map(|(g, d)| g * d).sum::<f64>();
+        }
     }
 }
 
@@ -356,11 +415,11 @@ impl Problem for Model {
     fn helper_rates(&mut self, t: f64, y: &[f64], dy: &[f64], out: &mut [f64]) -> bool {
         let n = self.state_names.len();
         let grad = self.helper_grad.get_or_insert_with(|| build_helper_gradients(&mut self.low));
-        self.grad_buf.resize(out.len() * (n + 1), 0.0);
-        grad.eval(t, y, &mut self.grad_buf);
-        for (o, row) in out.iter_mut().zip(self.grad_buf.chunks_exact(n + 1)) {
-            *o = row[n] + row[..n].iter().zip(dy).map(|(g, d)| g * d).sum::<f64>();
-        }
+        let mut buf = std::mem::take(&mut self.grad_buf);
+        buf.resize(out.len() * (n + 1), 0.0);
+        grad.eval(t, y, &mut buf);
+        self.helper_rates_from(&buf, dy, out);
+        self.grad_buf = buf;
         true
     }
 

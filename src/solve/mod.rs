@@ -169,6 +169,18 @@ pub enum Status {
     Failed(SolveError),
 }
 
+impl Status {
+    /// The status in one word, as the JS API reports it: `finished`,
+    /// `stopped` or `failed`.
+    pub fn word(&self) -> &'static str {
+        match self {
+            Status::Finished => "finished",
+            Status::Stopped { .. } => "stopped",
+            Status::Failed(_) => "failed",
+        }
+    }
+}
+
 /// One crossing of an event.
 #[derive(Clone, Debug, PartialEq)]
 pub struct EventHit {

@@ -88,19 +88,7 @@ fn carts_sheet() -> String {
     s
 }
 
-const ORBIT: &str = "mu = 0.012277471
-m = 1 - mu
-r1 = ((x + mu)*(x + mu) + y*y)^1.5
-r2 = ((x - m)*(x - m) + y*y)^1.5
-x' = vx
-y' = vy
-vx' = x + 2*vy - m*(x + mu)/r1 - mu*(x - m)/r2
-vy' = y - 2*vx - m*y/r1 - mu*y/r2
-x(0) = 0.994
-y(0) = 0
-vx(0) = 0
-vy(0) = -2.00158510637908252240537862224
-";
+const ORBIT: &str = crate::problems::bench::ARENSTORF_SHEET;
 
 fn cases() -> Vec<Case> {
     vec![
@@ -277,20 +265,20 @@ pub fn bench_emit_load(case: usize, emit: bool, times: u32) -> Result<u32, JsVal
     })
 }
 
-/// The non-stiff problems of the shared set as sheets, with their start, end
-/// and state: `(name, sheet)`; the same formulas as `crate::problems::nonstiff`.
+/// The non-stiff problems of the shared set as sheets
+/// ([`crate::problems::bench::sheet`]): `(name, sheet)`.
 fn solve_sheets() -> Vec<(&'static str, String)> {
-    vec![
-        ("logistic", "y' = y*(1 - y/10)\ny(0) = 0.5\n".into()),
-        ("cooling", "T' = -0.5*(T - (20 + 5*sin(2*t)))\nT(0) = 90\n".into()),
-        ("oscillator", "x' = v\nv' = cos(1.5*t) - 0.4*v - 4*x\nx(0) = 1\nv(0) = 0\n".into()),
-        // Without helpers, like the hand-written one (helpers add work: their extrema).
-        ("arenstorf", ORBIT.replace("r1 = ", "# ").replace("r2 = ", "# ")
-            .replace("/r1", "/((x + mu)*(x + mu) + y*y)^1.5").replace("/r2", "/((x - m)*(x - m) + y*y)^1.5")),
-        ("lorenz", "x' = 10*(y - x)\ny' = x*(28 - z) - y\nz' = x*y - 8/3*z\nx(0) = 1\ny(0) = 1\nz(0) = 1\n".into()),
-        ("brusselator", "x' = 1 + x*x*y - 4*x\ny' = 3*x - x*x*y\nx(0) = 1.5\ny(0) = 3\n".into()),
-        ("pendulum", "theta' = omega\nomega' = -9.81/2*sin(theta)\ntheta(0) = 2.5\nomega(0) = 0\n".into()),
-    ]
+    let names = ["logistic", "cooling", "oscillator", "arenstorf", "lorenz", "brusselator", "pendulum"];
+    names
+        .into_iter()
+        .filter_map(|n| crate::problems::bench::sheet(n).map(|s| (n, s.to_string())))
+        .map(|(n, s)| match n {
+            // Without helpers, like the hand-written one (helpers add work: their extrema).
+            "arenstorf" => (n, ORBIT.replace("r1 = ", "# ").replace("r2 = ", "# ")
+                .replace("/r1", "/((x + mu)*(x + mu) + y*y)^1.5").replace("/r2", "/((x - m)*(x - m) + y*y)^1.5")),
+            _ => (n, s),
+        })
+        .collect()
 }
 
 /// The names of the shared non-stiff problems with a sheet for the solve benchmark.

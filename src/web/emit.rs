@@ -170,13 +170,15 @@ pub fn emit_module(sheet: &str) -> Result<Uint8Array, JsValue> {
 }
 
 /// Every evaluation a solver can ask of a model, at each point, in one flat
-/// array: rates, helpers, events, switches, Jacobian and `∂f/∂t`.
+/// array: rates, helpers, events, switches, Jacobian, `∂f/∂t` and the
+/// helpers' rates.
 fn evaluate(p: &mut dyn Problem, points: &[f64]) -> Vec<f64> {
     let n = p.dim();
     let mut out = Vec::new();
     for point in points.chunks_exact(1 + n) {
         let (t, y) = (point[0], &point[1..]);
-        let sizes = [n, p.helper_names().len(), p.events().len(), p.switch_count(), n * n, n];
+        let nh = p.helper_names().len();
+        let sizes = [n, nh, p.events().len(), p.switch_count(), n * n, n, nh];
         let start = out.len();
         out.resize(start + sizes.iter().sum::<usize>(), 0.0);
         let mut rest = &mut out[start..];
@@ -185,12 +187,15 @@ fn evaluate(p: &mut dyn Problem, points: &[f64]) -> Vec<f64> {
             rest = tail;
             head
         };
-        p.rhs(t, y, take(sizes[0]));
+        let dy = take(sizes[0]);
+        p.rhs(t, y, dy);
+        let dy = dy.to_vec();
         p.helpers(t, y, take(sizes[1]));
         p.event_values(t, y, take(sizes[2]));
         p.switch_values(t, y, take(sizes[3]));
         p.jacobian(t, y, take(sizes[4]));
         p.time_derivative(t, y, take(sizes[5]));
+        p.helper_rates(t, y, &dy, take(sizes[6]));
     }
     out
 }

@@ -6,6 +6,8 @@ use wasm_bindgen::prelude::*;
 use crate::{api, draw};
 
 #[cfg(feature = "bench")]
+mod bench_call;
+#[cfg(feature = "bench")]
 mod bench_emit;
 mod bench_stiff;
 mod emit;
@@ -75,21 +77,89 @@ pub fn solve(sheet: JsValue, settings: JsValue) -> Result<JsValue, JsValue> {
     // number or an object.
     let sheet = sheet.as_string().ok_or_else(|| error_with("the sheet must be a string", &[]))?;
     let sheet = sheet.as_str();
-    let req: api::RunRequest = if settings.is_undefined() || settings.is_null() {
-        api::RunRequest::default()
-    } else {
-        serde_wasm_bindgen::from_value(settings).map_err(|e| error_with(&format!("settings: {e}"), &[]))?
-    };
+    let req: api::RunRequest = request(settings, "settings")?;
     let run = api::solve(sheet, &req).map_err(api_error)?;
     to_js(&run)
 }
 
+/// A request object (settings of a run, of a comparison, …) from JS; the
+/// defaults for `undefined` or `null`. A value that is not an object, or a
+/// setting of the wrong kind, gives a plain `Error` naming the setting and
+/// saying what it should hold.
 fn request<T: serde::de::DeserializeOwned + Default>(v: JsValue, what: &str) -> Result<T, JsValue> {
     if v.is_undefined() || v.is_null() {
-        Ok(T::default())
-    } else {
-        serde_wasm_bindgen::from_value(v).map_err(|e| error_with(&format!("{what}: {e}"), &[]))
+        return Ok(T::default());
     }
+    if !v.is_object() || v.is_function() || js_sys::Array::is_array(&v) {
+        let msg = format!("the {what} must be an object of named settings, such as {{ to: 10 }}, not {}", kind_of(&v));
+        return Err(error_with(&msg, &[]));
+    }
+    serde_wasm_bindgen::from_value(v.clone()).map_err(|e| {
+        // Find the setting at fault: the first that does not read on its own.
+        let keys = js_sys::Object::keys(v.unchecked_ref::<js_sys::Object>());
+        for key in keys.iter() {
+            let value = js_sys::Reflect::get(&v, &key).unwrap_or(JsValue::UNDEFINED);
+            let one = js_sys::Object::new();
+            let _ = js_sys::Reflect::set(&one, &key, &value);
+            if let Err(e) = serde_wasm_bindgen::from_value::<T>(one.into()) {
+                let name = key.as_string().unwrap_or_default();
+                return error_with(&format!("{what}: `{name}` {}", plain(&e.to_string(), &value)), &[]);
+            }
+        }
+        error_with(&format!("{what}: {}", plain(&e.to_string(), &v)), &[])
+    })
+}
+
+/// What kind of JS value `v` is, in words.
+fn kind_of(v: &JsValue) -> &'static str {
+    if v.is_function() {
+        "a function"
+    } else if js_sys::Array::is_array(v) {
+        "an array"
+    } else if v.is_string() {
+        "a string"
+    } else if v.as_bool().is_some() {
+        "true or false"
+    } else if v.as_f64().is_some() {
+        "a number"
+    } else if v.is_symbol() {
+        "a symbol"
+    } else if v.is_bigint() {
+        "a BigInt"
+    } else if v.is_null() {
+        "null"
+    } else if v.is_object() {
+        "an object"
+    } else {
+        "undefined"
+    }
+}
+
+/// A deserializer's complaint about `value` in plain words: what the setting
+/// should hold (from serde's "expected …"), and what it holds.
+fn plain(serde_message: &str, value: &JsValue) -> String {
+    let expected = serde_message.rsplit("expected ").next().unwrap_or("");
+    let wanted = if ["f64", "f32", "u64", "u32", "usize", "i64", "i32"].iter().any(|t| expected.starts_with(t)) {
+        "a number"
+    } else if expected.contains("sequence") || expected.contains("tuple") {
+        "an array"
+    } else if expected.contains("string") {
+        "a string"
+    } else if expected.contains("bool") {
+        "true or false"
+    } else if expected.contains("map") || expected.contains("struct") {
+        "an object"
+    } else if expected.contains("variant") {
+        "one of the names listed in the documentation"
+    } else {
+        "a value of another kind"
+    };
+    let holds = kind_of(value);
+    if (holds == "an array" || holds == "an object") && wanted != "an array" && wanted != "an object" {
+        // Something inside is of the wrong kind.
+        return format!("must hold {wanted} in each entry");
+    }
+    format!("must be {wanted}, not {holds}")
 }
 
 /// Compare fixed-step methods at h, h/2, h/4, … with an adaptive reference

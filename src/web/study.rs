@@ -3,15 +3,8 @@
 
 use wasm_bindgen::prelude::*;
 
-use super::{api_error, error_with, numbers_arg, progress_fn, text_arg, to_js};
+use super::{api_error, numbers_arg, progress_fn, request, text_arg, to_js};
 use crate::api::study::{self, StudyRequest};
-
-fn request(settings: JsValue) -> Result<StudyRequest, JsValue> {
-    if settings.is_undefined() || settings.is_null() {
-        return Ok(StudyRequest::default());
-    }
-    serde_wasm_bindgen::from_value(settings).map_err(|e| error_with(&format!("settings: {e}"), &[]))
-}
 
 /// `h·λ` points given flat as `[re0, im0, re1, im1, …]`.
 fn points(v: &JsValue) -> Result<Vec<(f64, f64)>, JsValue> {
@@ -26,7 +19,7 @@ fn points(v: &JsValue) -> Result<Vec<(f64, f64)>, JsValue> {
 #[wasm_bindgen(js_name = checkAccuracy)]
 pub fn check_accuracy(sheet: JsValue, settings: JsValue, progress: JsValue) -> Result<JsValue, JsValue> {
     let sheet = text_arg(&sheet, "the sheet")?;
-    let req = request(settings)?;
+    let req: StudyRequest = request(settings, "settings")?;
     let mut report = progress_fn(progress);
     to_js(&study::check_accuracy_with(&sheet, &req, &mut |done, total| report(done, total.unwrap_or(0))).map_err(api_error)?)
 }
@@ -39,7 +32,7 @@ pub fn check_accuracy(sheet: JsValue, settings: JsValue, progress: JsValue) -> R
 #[wasm_bindgen(js_name = convergenceStudy)]
 pub fn convergence_study(sheet: JsValue, settings: JsValue, progress: JsValue) -> Result<JsValue, JsValue> {
     let sheet = text_arg(&sheet, "the sheet")?;
-    let req = request(settings)?;
+    let req: StudyRequest = request(settings, "settings")?;
     let mut report = progress_fn(progress);
     to_js(&study::convergence_study_with(&sheet, &req, &mut |done, total| report(done, total.unwrap_or(0))).map_err(api_error)?)
 }

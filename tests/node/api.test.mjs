@@ -2,7 +2,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
-import { initSync, solve, version } from "../../www/pkg/ratebook.js";
+import { initSync, solve, compareMethods, version } from "../../www/pkg/ratebook.js";
 
 initSync({ module: readFileSync(new URL("../../www/pkg/ratebook_bg.wasm", import.meta.url)) });
 
@@ -28,4 +28,40 @@ test("an unreadable sheet throws an Error with line and column", () => {
     assert.equal(typeof e.column, "number");
     return true;
   });
+});
+
+test("a report's columns are plain arrays, and a sheet solved again gives the same report", () => {
+  const sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q\nh(0) = 3\nmark when h < 1\n";
+  const a = solve(sheet, { to: 5 });
+  for (const col of [a.t, ...Object.values(a.values)]) {
+    assert.ok(Array.isArray(col));
+    assert.equal(col.length, a.t.length);
+  }
+  assert.deepEqual(Object.keys(a), ["independent", "method", "states", "helpers", "t", "values", "events", "extrema",
+    "diagnostics", "status", "error", "stats"]);
+  assert.deepEqual(Object.keys(a.values), ["h", "q"]);
+  // The second call reuses the compiled sheet; a third with a new value of k
+  // recompiles; both agree with the first exactly (JSON keeps every digit).
+  assert.equal(JSON.stringify(solve(sheet, { to: 5 })), JSON.stringify(a));
+  const other = solve(sheet, { to: 5, params: { k: 0.5 } });
+  assert.notEqual(JSON.stringify(other), JSON.stringify(a));
+  assert.equal(JSON.stringify(solve(sheet.replace("k = 0.8", "k = 0.5"), { to: 5 })), JSON.stringify(other));
+});
+
+test("settings of the wrong kind are refused in plain words that name the setting", () => {
+  const sheet = "y' = -y\ny(0) = 1\n";
+  const refused = (settings, pattern) => assert.throws(() => solve(sheet, settings), (e) => {
+    assert.ok(e instanceof Error && !(e instanceof WebAssembly.RuntimeError), String(e));
+    assert.match(e.message, pattern);
+    assert.doesNotMatch(e.message, /JsValue|Reflect|invalid type|expected/);
+    return true;
+  });
+  refused(5, /^the settings must be an object of named settings, such as \{ to: 10 \}, not a number$/);
+  refused("to=1", /not a string$/);
+  refused([1, 2], /not an array$/);
+  refused({ to: 1, at: () => 1 }, /^settings: `at` must be an array, not a function$/);
+  refused({ to: "10" }, /^settings: `to` must be a number, not a string$/);
+  refused({ to: 1, at: [0, "x"] }, /^settings: `at` must hold a number in each entry$/);
+  refused({ to: 1, params: { k: "x" } }, /^settings: `params` must hold a number in each entry$/);
+  assert.throws(() => compareMethods(sheet, { to: 1 }, 7), /^Error: the comparison must be an object/);
 });
