@@ -371,6 +371,17 @@ pub fn report(m: &Model, method: &str, run: Run) -> RunReport {
         .into_iter()
         .map(|d| DiagnosticReport { level: d.level, code: d.code, message: d.message, t: d.t })
         .collect();
+    let extrema = run
+        .extrema
+        .into_iter()
+        .map(|x| {
+            for (v, t) in [(x.max, x.t_max), (x.min, x.t_min)].into_iter().filter(|(v, _)| v.is_infinite()) {
+                diagnostics.push(overflowed(&x.name, v, t, m.independent()));
+            }
+            let finite = |v: f64| v.is_finite().then_some(v);
+            ExtremumReport { name: x.name, max: finite(x.max), t_max: x.t_max, min: finite(x.min), t_min: x.t_min }
+        })
+        .collect();
     let status = run.status.word();
     let (error, reached) = match &run.status {
         Status::Finished => (None, None),
