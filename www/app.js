@@ -59,7 +59,7 @@ function readSettings() {
   const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
   const method = $("method").value;
   const s = { to: num("to"), method };
-  if (isFixed(method)) s.step = num("step"); else { s.rtol = num("rtol"); s.atol = num("atol"); }
+  if (isFixed(method)) s.step = num("step"); else s.tolerance = { relative: num("tol-relative"), absolute: num("tol-absolute") };
   const spacing = num("spacing");
   if (spacing !== undefined) s.spacing = spacing;
   return s;
@@ -68,7 +68,8 @@ function readSettings() {
 /** The settings as kept (all fields, for autosave/links/files). */
 function keptSettings() {
   const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
-  return { to: num("to"), method: $("method").value, rtol: num("rtol"), atol: num("atol"), step: num("step"), spacing: num("spacing") };
+  const tolerance = { relative: num("tol-relative"), absolute: num("tol-absolute") };
+  return { to: num("to"), method: $("method").value, tolerance, step: num("step"), spacing: num("spacing") };
 }
 
 function writeSettings(s) {
@@ -76,8 +77,8 @@ function writeSettings(s) {
   const put = (id, v) => { if (typeof v === "number") $(id).value = text(v); };
   put("to", s.to);
   if (s.method && METHODS.some((m) => m[0] === s.method)) $("method").value = s.method;
-  put("rtol", s.rtol);
-  put("atol", s.atol);
+  put("tol-relative", s.tolerance?.relative);
+  put("tol-absolute", s.tolerance?.absolute);
   put("step", s.step);
   $("spacing").value = typeof s.spacing === "number" ? text(s.spacing) : "";
   methodChanged();
@@ -92,18 +93,18 @@ function methodChanged() {
 function checkSettings(s) {
   if (!Number.isFinite(s.to)) return "Set the end of the run (a number).";
   if (isFixed(s.method) && !(s.step > 0)) return "Set the step h (a positive number) for a fixed-step method.";
-  if (!isFixed(s.method) && (!(s.rtol > 0) || !(s.atol > 0))) return "Set rtol and atol (positive numbers).";
+  if (!isFixed(s.method) && (!(s.tolerance.relative > 0) || !(s.tolerance.absolute > 0))) return "Set the relative and absolute tolerances (positive numbers).";
   if (s.spacing !== undefined && !(s.spacing > 0)) return "The output spacing must be a positive number, or blank for every step.";
   return null;
 }
 
-/** Solver settings for the plotted run and for the table. */
+/** Solver settings (without the page's own `spacing`), for the plotted run and for the table. */
 function runSettings(sheet, s) {
   const { spacing, ...base } = s;
   const t0 = sheetStart(sheet);
   const plot = { ...base, at: grid(t0, s.to, Math.abs(s.to - t0) / PLOT_POINTS) };
   const table = spacing === undefined ? base : { ...base, at: grid(t0, s.to, spacing) };
-  return { plot, table };
+  return { base, plot, table };
 }
 
 // ---- solving
@@ -122,12 +123,12 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   const seq = ++app.seq;
   const bad = checkSettings(s);
   if (bad) { showProblem({ message: bad }); return; }
-  const { plot, table } = runSettings(sheet, s);
+  const { base, plot, table } = runSettings(sheet, s);
   let plotRun, tableRun;
   try {
     if (!app.slowModel || !hasWorker()) {
       const t = performance.now();
-      plotRun = timed("solve", () => solveHere(sheet, { ...plot, maxSteps: hasWorker() ? 50000 : undefined }));
+      plotRun = timed("solve", () => solveHere(sheet, { ...plot, stepLimit: hasWorker() ? 50000 : undefined }));
       if (performance.now() - t > 100 || (hasWorker() && hitStepCap(plotRun))) {
         app.slowModel = true;
         plotRun = null;
@@ -156,7 +157,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
-  showFieldRun(sheet, s, plotRun, { live });
+  showFieldRun(sheet, base, plotRun, { live });
   if (!live) {
     showParams(sheet, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
@@ -354,7 +355,7 @@ function initPage() {
   initExports(fileBase);
 
   $("run").addEventListener("click", () => { app.slowModel = false; solveAndShow(); save(); });
-  for (const id of ["to", "rtol", "atol", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
+  for (const id of ["to", "tol-relative", "tol-absolute", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
   $("method").addEventListener("change", () => { methodChanged(); solveAndShow(); save(); });
   $("examples").addEventListener("change", () => { const id = $("examples").value; $("examples").value = ""; loadExample(id); });
   $("csv").addEventListener("click", () => { if (app.good?.tableRun) downloadCsv(app.good.tableRun, fileBase()); });

@@ -4,7 +4,7 @@
 import { $, el, fmt } from "./dom.js";
 import { Plot, registerPlot, drawPlot } from "./plotkit.js";
 
-const NAMES = { euler: "Euler", heun: "Heun", midpoint: "midpoint", rk4: "RK4", dp54: "adaptive reference (dp54)" };
+const NAMES = { euler: "Euler", heun: "Heun", midpoint: "midpoint", rk4: "RK4", "dormand-prince-5": "adaptive reference (Dormand–Prince 5(4))" };
 const label = (id) => NAMES[id] ?? id;
 let report = null;
 
@@ -20,7 +20,7 @@ function describeOverlay() {
     const level = Math.round(Math.log2(report.runs.find((q) => q.method === r.method).step / r.step));
     plot.line(`${label(r.method)} h = ${fmt(r.step, 3)}`, r.t, r.y, methodColour(methods.indexOf(r.method)), level === 0 ? 1 : level + 1, level === 0, false);
   });
-  plot.line(label("dp54"), report.reference.t, report.reference.y, -1, 2, false, false);
+  plot.line(label("dormand-prince-5"), report.reference.t, report.reference.y, -1, 2, false, false);
   return plot;
 }
 

@@ -1,35 +1,71 @@
 // Keeping work: autosave in localStorage, share links in the URL fragment,
 // and the saved-file format. All three carry the same "kept model":
-//   { sheet: string, settings: { to, method, rtol, atol, step, spacing } }
-// The file format is documented in DEVELOPERS.md ("Saved files").
+//   { sheet: string, settings: { to, method, tolerance: { relative, absolute }, step, spacing } }
+// The file format is documented in DEVELOPERS.md ("Saved files"). Version 1
+// (files, links and autosaves made before the settings were renamed) is read
+// and mapped to today's names.
 
 export const FILE_FORMAT = "ratebook-model";
-export const FILE_VERSION = 1;
+export const FILE_VERSION = 2;
 export const MAX_KEPT_BYTES = 1 << 20;
 
-const AUTOSAVE_KEY = "ratebook.autosave.v1";
-const PREVIOUS_KEY = "ratebook.previous.v1";
+const AUTOSAVE_KEY = "ratebook.autosave.v2";
+const PREVIOUS_KEY = "ratebook.previous.v2";
+/** The keys version 1 kept the same things under. */
+const V1_KEYS = { [AUTOSAVE_KEY]: "ratebook.autosave.v1", [PREVIOUS_KEY]: "ratebook.previous.v1" };
 
 /** A typed problem with a kept model (a file, a link, an autosave). */
 export class KeptModelError extends Error {}
 
-const SETTING_KEYS = { to: "number", method: "string", rtol: "number", atol: "number", step: "number", spacing: "number" };
+const SETTING_KEYS = { to: "number", method: "string", step: "number", spacing: "number" };
+const TOLERANCE_KEYS = ["relative", "absolute"];
 
-/** Check and normalise a kept model; throws KeptModelError with a plain message. */
-export function checkKept(obj) {
+/** Version 1's method ids, with their ids now (as in src/api/mod.rs, FORMER_METHOD_IDS). */
+export const V1_METHOD_IDS = {
+  bs32: "bogacki-shampine-3", dp54: "dormand-prince-5", dp853: "dormand-prince-8",
+  beuler: "backward-euler", rodas4: "rosenbrock-4", radau5: "radau-iia-5",
+};
+
+/** Version 1's settings in today's names: `rtol`/`atol` become `tolerance`, old method ids new ones. */
+function fromV1(given) {
+  const { rtol, atol, ...rest } = given;
+  if (rtol !== undefined || atol !== undefined) rest.tolerance = { relative: rtol, absolute: atol };
+  if (Object.hasOwn(V1_METHOD_IDS, rest.method)) rest.method = V1_METHOD_IDS[rest.method];
+  return rest;
+}
+
+const absent = (v) => v === undefined || v === null || v === "";
+
+function checkNumber(v, what) {
+  if (typeof v !== "number" || !Number.isFinite(v)) throw new KeptModelError(`its setting "${what}" is not a valid number`);
+  return v;
+}
+
+/**
+ * Check and normalise a kept model of format `version` (1 or 2); throws
+ * KeptModelError with a plain message.
+ */
+export function checkKept(obj, version = FILE_VERSION) {
   if (!obj || typeof obj !== "object" || Array.isArray(obj)) throw new KeptModelError("it holds no model");
   if (typeof obj.sheet !== "string") throw new KeptModelError("it has no sheet text");
   if (obj.sheet.length > MAX_KEPT_BYTES) throw new KeptModelError("its sheet is over 1 MB");
   const settings = {};
-  const given = obj.settings && typeof obj.settings === "object" ? obj.settings : {};
+  let given = obj.settings && typeof obj.settings === "object" ? obj.settings : {};
+  if (version === 1) given = fromV1(given);
   for (const [k, type] of Object.entries(SETTING_KEYS)) {
     const v = given[k];
-    if (v === undefined || v === null || v === "") continue;
-    if (typeof v !== type || (type === "number" && !Number.isFinite(v))) {
-      throw new KeptModelError(`its setting "${k}" is not a valid ${type}`);
-    }
+    if (absent(v)) continue;
+    if (type === "number") checkNumber(v, k);
+    else if (typeof v !== type) throw new KeptModelError(`its setting "${k}" is not a valid ${type}`);
     if (type === "string" && !/^[a-z0-9_-]{1,32}$/.test(v)) throw new KeptModelError(`its setting "${k}" is not a method id`);
     settings[k] = v;
+  }
+  const tol = given.tolerance;
+  if (!absent(tol)) {
+    if (typeof tol !== "object" || Array.isArray(tol)) throw new KeptModelError(`its setting "tolerance" is not { relative, absolute }`);
+    const t = {};
+    for (const k of TOLERANCE_KEYS) if (!absent(tol[k])) t[k] = checkNumber(tol[k], `tolerance.${k}`);
+    settings.tolerance = t;
   }
   return { sheet: obj.sheet, settings };
 }
@@ -67,7 +103,9 @@ function getJson(key) {
   if (!s) return null;
   try {
     const raw = s.getItem(key);
-    return raw ? checkKept(JSON.parse(raw)) : null;
+    if (raw) return checkKept(JSON.parse(raw));
+    const old = s.getItem(V1_KEYS[key]);
+    return old ? checkKept(JSON.parse(old), 1) : null;
   } catch {
     return null;
   }
@@ -120,8 +158,8 @@ export async function readFragment(hash) {
     if (e instanceof KeptModelError) throw e;
     throw new KeptModelError("the link is damaged or cut short");
   }
-  if (json?.v !== FILE_VERSION) throw new KeptModelError(`the link is of version ${JSON.stringify(json?.v)}; this page reads version ${FILE_VERSION}`);
-  return checkKept(json);
+  if (json?.v !== 1 && json?.v !== FILE_VERSION) throw new KeptModelError(`the link is of version ${JSON.stringify(json?.v)}; this page reads versions 1 to ${FILE_VERSION}`);
+  return checkKept(json, json.v);
 }
 
 // ---- saved files
@@ -141,6 +179,6 @@ export function readFileText(text) {
     throw new KeptModelError("the file is not JSON (damaged or cut short?)");
   }
   if (json?.format !== FILE_FORMAT) throw new KeptModelError("the file is not a ratebook model");
-  if (json.version !== FILE_VERSION) throw new KeptModelError(`the file is of version ${JSON.stringify(json.version)}; this page reads version ${FILE_VERSION}`);
-  return checkKept(json);
+  if (json.version !== 1 && json.version !== FILE_VERSION) throw new KeptModelError(`the file is of version ${JSON.stringify(json.version)}; this page reads versions 1 to ${FILE_VERSION}`);
+  return checkKept(json, json.version);
 }

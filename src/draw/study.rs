@@ -191,7 +191,7 @@ mod look {
         let mut svg = String::new();
         {
             let root = SVGBackend::with_string(&mut svg, (480, 360)).into_drawing_area();
-            stability_region(&root, "beuler", &be, &[C64::new(-10.0, 0.0)]).unwrap();
+            stability_region(&root, "backward-euler", &be, &[C64::new(-10.0, 0.0)]).unwrap();
         }
         std::fs::write("/tmp/st/be.svg", svg).unwrap();
     }

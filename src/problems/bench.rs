@@ -37,7 +37,7 @@ pub fn bench_repeat(problem: &str, method: &str, rtol: f64, atol: f64, repeats: 
     let settings = crate::solve::Settings {
         method: method.to_string(),
         to: p.t_end,
-        tol: crate::solve::Tolerance { rtol, atol },
+        tol: crate::solve::Tolerance { relative: rtol, absolute: atol },
         extrema: false,
         ..crate::solve::Settings::default()
     };
@@ -67,13 +67,13 @@ mod tests {
     #[test]
     fn repeated_runs_report_one_run() {
         // The logistic problem's end value against its analytic solution.
-        let one = bench_run("logistic", "dp54", 1e-8, 1e-8).unwrap();
-        let three = bench_repeat("logistic", "dp54", 1e-8, 1e-8, 3).unwrap();
+        let one = bench_run("logistic", "dormand-prince-5", 1e-8, 1e-8).unwrap();
+        let three = bench_repeat("logistic", "dormand-prince-5", 1e-8, 1e-8, 3).unwrap();
         assert_eq!(one, three);
         let y = one["y"][0].as_f64().unwrap();
         assert!((y - super::super::nonstiff::logistic_exact(10.0)).abs() < 1e-6);
         assert_eq!(one["status"], "finished");
-        assert!(bench_run("no-such-problem", "dp54", 1e-6, 1e-6).is_none());
+        assert!(bench_run("no-such-problem", "dormand-prince-5", 1e-6, 1e-6).is_none());
         assert!(bench_run("logistic", "no-such-method", 1e-6, 1e-6).is_none());
     }
 }

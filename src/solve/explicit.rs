@@ -461,7 +461,7 @@ mod tests {
 
     #[test]
     fn weighted_rms_matches_definition() {
-        let tol = Tolerance { rtol: 0.5, atol: 1.0 };
+        let tol = Tolerance { relative: 0.5, absolute: 1.0 };
         // weights 1 + 0.5·max(|y|,|z|) = 2 and 3
         let v = weighted_rms(&[2.0, 3.0], &[2.0, 0.0], &[1.0, 4.0], &tol);
         assert!((v - 1.0).abs() < 1e-15);

@@ -34,7 +34,7 @@ const NEWTON_MAX_ITER: usize = 7;
 
 /// The Newton convergence bound `κ` for a tolerance (see the module doc).
 fn newton_kappa(tol: &Tolerance) -> f64 {
-    let rtol = tol.rtol.max(1e-14);
+    let rtol = tol.relative.max(1e-14);
     (10.0 * f64::EPSILON / rtol).max(0.03f64.min(rtol.sqrt()))
 }
 
@@ -91,13 +91,13 @@ pub struct ThetaMethod {
     pub reference: &'static str,
 }
 
-/// Backward (implicit) Euler, `beuler`: order 1, one stage, L-stable. Fixed
+/// Backward (implicit) Euler, `backward-euler`: order 1, one stage, L-stable. Fixed
 /// step with the user's `h`; for comparison views, to show a method that
 /// stays stable at any `h` on a stiff decay. Dense output is linear.
 /// Source: Hairer & Wanner, *Solving ODEs II*, Sec. IV.3 (implicit Euler;
 /// section from memory).
 pub static BACKWARD_EULER: ThetaMethod =
-    ThetaMethod { id: "beuler", theta: 1.0, order: 1, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (implicit Euler)" };
+    ThetaMethod { id: "backward-euler", theta: 1.0, order: 1, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (implicit Euler)" };
 
 /// Trapezoidal rule, `trapezoid`: order 2, A-stable but not L-stable (stiff
 /// components are not damped, they flip sign each step). Fixed step with the
@@ -286,7 +286,7 @@ const fn s6(p: i64, q: i64, r: i64) -> Sqrt6Number {
     Sqrt6Number { p, q, r }
 }
 
-/// The 3-stage Radau IIA collocation method, `radau5`, as data.
+/// The 3-stage Radau IIA collocation method, `radau-iia-5`, as data.
 #[derive(Debug)]
 pub struct RadauTableau {
     /// Stable method id.
@@ -311,7 +311,7 @@ pub struct RadauTableau {
     pub reference: &'static str,
 }
 
-/// Radau IIA of order 5, `radau5`: 3 implicit stages, L-stable, stiffly
+/// Radau IIA of order 5, `radau-iia-5`: 3 implicit stages, L-stable, stiffly
 /// accurate, stage order 3; dense output is the collocation polynomial
 /// (order 3). Embedded error estimate of order 3 with the stiff filter
 /// `(I - γ0 hJ)^{-1}`. Use it for stiff problems at tight tolerances (rtol
@@ -337,7 +337,7 @@ pub struct RadauTableau {
 // The digits as published, kept whole.
 #[allow(clippy::excessive_precision)]
 pub static RADAU5: RadauTableau = RadauTableau {
-    id: "radau5",
+    id: "radau-iia-5",
     order: 5,
     embedded_order: 3,
     a: [
@@ -841,7 +841,7 @@ pub(crate) mod testing {
     pub fn fixed_step_error(st: &mut dyn Stepper, m: usize, check: DenseCheck) -> f64 {
         let mut p = nonlinear_exact();
         let h = 1.0 / m as f64;
-        let tol = Tolerance { rtol: 1e-12, atol: 1e-12 };
+        let tol = Tolerance { relative: 1e-12, absolute: 1e-12 };
         let mut y = exact_solution(0.0).to_vec();
         let mut y1 = y.clone();
         let mut stats = Stats::default();
@@ -1046,7 +1046,7 @@ mod tests {
         let mut p = nonlinear_exact();
         let y0 = exact_solution(0.0);
         // Newton stops within κ = 1e-4 of the weights (~2e-8): about 2e-12.
-        let tol = Tolerance { rtol: 1e-8, atol: 1e-8 };
+        let tol = Tolerance { relative: 1e-8, absolute: 1e-8 };
         let mut st = Radau::new(2);
         let mut stats = Stats::default();
         let mut y1 = [0.0; 2];
@@ -1113,14 +1113,14 @@ mod tests {
     fn stiff_references_with_a_plain_loop() {
         use crate::problems::stiff::*;
         // References: tests/reference/stiff_reference.py (SciPy Radau, rtol 1e-13 / 1e-12).
-        let tol = Tolerance { rtol: 1e-6, atol: 1e-6 };
+        let tol = Tolerance { relative: 1e-6, absolute: 1e-6 };
         let mut st: Vec<(Box<dyn Stepper>, u32)> = vec![(Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 2)), 3), (Box::new(Radau::new(2)), 3)];
         for (s, q) in st.iter_mut() {
             let (y, stats) = adaptive(s.as_mut(), &mut VanDerPol::new(1000.0), &[2.0, 0.0], 3000.0, &tol, *q);
             eprintln!("vdp {:?} {:?} err {:e}", y, stats, (y[0] - VAN_DER_POL_1000_AT_3000[0]).abs());
             assert!((y[0] - VAN_DER_POL_1000_AT_3000[0]).abs() < 1e-2);
         }
-        let tol = Tolerance { rtol: 1e-6, atol: 1e-10 };
+        let tol = Tolerance { relative: 1e-6, absolute: 1e-10 };
         let mut st: Vec<(Box<dyn Stepper>, u32)> = vec![(Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 3)), 3), (Box::new(Radau::new(3)), 3)];
         for (s, q) in st.iter_mut() {
             let (y, stats) = adaptive(s.as_mut(), &mut Robertson::default(), &[1.0, 0.0, 0.0], 1e5, &tol, *q);

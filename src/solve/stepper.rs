@@ -22,20 +22,21 @@ pub struct Stats {
     pub factorizations: u64,
 }
 
-/// Error weights: a component's error `e_i` counts as `e_i / (atol + rtol·max(|y_i|, |y_new_i|))`.
+/// Error weights: a component's error `e_i` counts as
+/// `e_i / (absolute + relative·max(|y_i|, |y_new_i|))`.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Tolerance {
     /// Relative tolerance. Default 1e-6.
-    pub rtol: f64,
+    pub relative: f64,
     /// Absolute tolerance. Default 1e-9.
-    pub atol: f64,
+    pub absolute: f64,
 }
 
 impl Tolerance {
-    /// The error weight of one component: `atol + rtol·max(|y|, |y_new|)`.
+    /// The error weight of one component: `absolute + relative·max(|y|, |y_new|)`.
     #[inline]
     pub fn weight(&self, y: f64, y_new: f64) -> f64 {
-        self.atol + self.rtol * max_of(y.abs(), y_new.abs())
+        self.absolute + self.relative * max_of(y.abs(), y_new.abs())
     }
 }
 
@@ -68,7 +69,7 @@ pub(crate) fn inf_norm(y: &[f64]) -> f64 {
 
 impl Default for Tolerance {
     fn default() -> Self {
-        Tolerance { rtol: 1e-6, atol: 1e-9 }
+        Tolerance { relative: 1e-6, absolute: 1e-9 }
     }
 }
 

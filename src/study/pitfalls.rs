@@ -300,7 +300,7 @@ pub fn detect(
                 "{}The picture shows each h·λ against the region.",
                 match largest {
                     Some(x) if x > 0.0 => format!(
-                        "Over all the modes seen along the run the largest stable step is h = {}: take h ≤ {}, or an implicit method (beuler, trapezoid), or `auto`. ",
+                        "Over all the modes seen along the run the largest stable step is h = {}: take h ≤ {}, or an implicit method (backward-euler, trapezoid), or `auto`. ",
                         with_digits(x, 3),
                         short(0.9 * x, 2)
                     ),
@@ -381,7 +381,7 @@ pub fn detect(
     }
 
     // Tolerance too loose for the digits shown.
-    let atol = settings.tol.atol;
+    let atol = settings.tol.absolute;
     let weak: Vec<&Quantity> = quantities
         .iter()
         .filter(|q| q.error.is_some() && !q.negligible && q.digits + 1 < opts.shown_digits)
@@ -398,9 +398,9 @@ pub fn detect(
             format!("Shrink the step to about h = {} (from {}), or read only {} digits.", with_digits(hn, 2), plain(h), w.digits)
         } else {
             format!(
-                "Tighten rtol to {} (it is {}), or read only {} digits.",
+                "Tighten the relative tolerance to {} (it is {}), or read only {} digits.",
                 with_digits(10f64.powi(-(opts.shown_digits as i32 + 2)), 1),
-                plain(settings.tol.rtol),
+                plain(settings.tol.relative),
                 w.digits
             )
         };
