@@ -54,7 +54,7 @@ fn count(args: &[String]) -> Option<()> {
             }
             _ => {
                 let f = bench_rhs(name)?;
-                let tab = m.tableau?;
+                let tab = m.tableau()?;
                 let r = match p.y0.len() {
                     2 => baseline::baseline::<2>(tab, f, &p.y0, p.t_end, tol, tol).1,
                     3 => baseline::baseline::<3>(tab, f, &p.y0, p.t_end, tol, tol).1,
@@ -89,9 +89,9 @@ fn main() {
             let run = solve(model.as_mut(), p.t0, &p.y0, &settings);
             steps = run.map(|r| r.stats.steps).unwrap_or(0);
         });
-        let tab = m.tableau.expect("explicit");
+        let tab = m.tableau().expect("explicit");
         let bare = per_solve(|| {
-            let mut st = (m.build)(p.y0.len());
+            let mut st = m.build(p.y0.len());
             let mut stats = Stats::default();
             let tol = settings.tol;
             let mut f0 = vec![0.0; p.y0.len()];

@@ -58,7 +58,7 @@ fn observed_orders_match_theory_for_steps_and_continuous_extensions() {
     let at = [1.0 / 3.0, 1.2, 7.0 / 3.0, 3.0 + 1.0 / 3.0, 4.0];
     for m in methods() {
         // The explicit methods (the implicit ones have their own tests).
-        if m.id == "auto" || m.tableau.is_none() {
+        if m.id == "auto" || m.tableau().is_none() {
             continue;
         }
         let hs = steps_for(m.order);

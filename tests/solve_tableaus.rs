@@ -3,9 +3,13 @@
 //! `Σ b_i Φ_i(τ) = 1/γ(τ)` for every rooted tree τ with |τ| ≤ p; Hairer,
 //! Nørsett & Wanner, *Solving ODEs I*, 2nd ed., Sec. II.2, Theorem 2.13), and
 //! of each continuous extension (`Σ B_i(θ) Φ_i(τ) = θ^|τ|/γ(τ)` for |τ| ≤ p*,
-//! same book, Sec. II.6, Theorem 6.1).
+//! same book, Sec. II.6, Theorem 6.1). Every entry of every family (explicit,
+//! θ-methods, Radau, Rosenbrock) is checked against its family's data and
+//! its stability function.
 
 use ratebook::solve::methods;
+use ratebook::solve::methods::Family;
+use ratebook::solve::stability::{StabilityFunction, C64};
 use ratebook::solve::tableau::{ErrorEstimate, Tableau};
 
 /// A rooted tree as the list of its children (each an index into the list).
@@ -78,7 +82,7 @@ fn tree_counts_match_known_sequence() {
 fn every_registry_tableau_meets_its_order_conditions() {
     let all = trees(9);
     for m in methods() {
-        let Some(tab) = m.tableau else { continue };
+        let Some(tab) = m.tableau() else { continue };
         assert_eq!(tab.order, m.order, "{}", m.id);
         assert_eq!(tab.stages() as u32, m.stages, "{}", m.id);
         assert_eq!(tab.fsal(), m.fsal, "{}", m.id);
@@ -122,7 +126,7 @@ fn every_registry_tableau_meets_its_order_conditions() {
 fn every_continuous_extension_meets_its_order_conditions() {
     let all = trees(8);
     for m in methods() {
-        let Some(tab) = m.tableau else { continue };
+        let Some(tab) = m.tableau() else { continue };
         let (p, extra) = tab.dense.weights(tab.b, tab.fsal());
         let mut a = rows(tab);
         for (_, row) in &extra {
@@ -165,5 +169,92 @@ fn registry_entries_are_documented_and_unique() {
     }
     for id in ["euler", "heun", "midpoint", "rk4", "bogacki-shampine-3", "dormand-prince-5", "dormand-prince-8", "auto"] {
         assert!(ratebook::solve::method(id).is_some(), "{id}");
+    }
+}
+
+/// The Taylor coefficients `c_0 … c_k` of `R(z)` at 0, from its values on
+/// the circle `|z| = 1/2` (the discrete Cauchy integral over 64 points; for
+/// the rational `R` of the implicit methods, whose poles lie beyond
+/// `|z| = 2`, the aliasing error is below `4^-64`).
+fn taylor(f: &StabilityFunction, k: usize) -> Vec<f64> {
+    let (r, n) = (0.5, 64);
+    let values: Vec<C64> = (0..n).map(|j| f.eval(C64::from_polar(r, 2.0 * std::f64::consts::PI * j as f64 / n as f64))).collect();
+    (0..=k)
+        .map(|m| {
+            let sum: C64 = values.iter().enumerate().map(|(j, v)| v * C64::from_polar(1.0, -2.0 * std::f64::consts::PI * (j * m) as f64 / n as f64)).sum();
+            sum.re / n as f64 / r.powi(m as i32)
+        })
+        .collect()
+}
+
+#[test]
+fn every_registry_entry_matches_its_family() {
+    // Every entry of every family: the registry's facts are its family's
+    // data, and the stability function R(z) of a method of order p agrees
+    // with e^z through z^p (the order conditions on y' = λy; Hairer &
+    // Wanner, Solving ODEs II, 2nd ed., Sec. IV.3) and not at z^(p+1).
+    for m in methods() {
+        let f = m.family;
+        assert_eq!(f.order(), m.order, "{}", m.id);
+        let (stages, embedded) = match f {
+            Family::Explicit(t) => (t.stages() as u32, m.embedded_order),
+            Family::Theta(t) => {
+                assert!(t.id == m.id, "{}", m.id);
+                (1, None)
+            }
+            Family::Radau(r) => {
+                assert!(r.id == m.id, "{}", m.id);
+                (r.c.len() as u32, Some(r.embedded_order))
+            }
+            Family::Rosenbrock(r) => {
+                assert!(r.id == m.id, "{}", m.id);
+                (r.stages() as u32, Some(r.embedded_order))
+            }
+        };
+        assert_eq!((stages, embedded), (m.stages, m.embedded_order), "{}", m.id);
+        assert_eq!(m.implicit, !matches!(f, Family::Explicit(_)), "{}", m.id);
+        // The controller's order: the blended or embedded estimate's, one
+        // above the embedded order for the stiff pairs, the order itself
+        // for the fixed-step methods.
+        let want = match f {
+            Family::Explicit(t) if t.error_order > 0 => t.error_order,
+            _ => m.embedded_order.map_or(m.order, |q| q + 1),
+        };
+        assert_eq!(m.error_order(), want, "{}", m.id);
+        let p = m.order as usize;
+        let c = taylor(&m.stability_function(), p + 1);
+        let mut factorial = 1.0;
+        for (k, ck) in c.iter().enumerate() {
+            if k > 0 {
+                factorial *= k as f64;
+            }
+            let d = (ck - 1.0 / factorial).abs();
+            if k <= p {
+                assert!(d < 1e-11, "{}: z^{k} coefficient {ck}, want 1/{k}!", m.id);
+            } else {
+                assert!(d > 1e-6 / factorial, "{}: R(z) agrees with e^z beyond order {p}", m.id);
+            }
+        }
+    }
+}
+
+#[test]
+fn stability_limits_on_the_negative_real_axis() {
+    // Euler's disc |1 + z| ≤ 1 and Heun's and the midpoint rule's
+    // 1 + z + z²/2 meet the negative real axis at −2 (analytic); RK4's
+    // 1 + z + z²/2 + z³/6 + z⁴/24 = 1 at z = −2.78529356340528162353
+    // (mpmath.findroot at 30 digits). The implicit methods hold the whole
+    // negative axis; the stiffness test does not watch them (limit 0).
+    for (id, want) in [("euler", 2.0), ("heun", 2.0), ("midpoint", 2.0), ("rk4", 2.785293563405282)] {
+        let got = ratebook::solve::method(id).unwrap().stability_limit();
+        assert!((got - want).abs() < 1e-8, "{id}: {got}");
+    }
+    for m in methods() {
+        if m.implicit {
+            assert_eq!(m.stability_limit(), 0.0, "{}", m.id);
+            assert_eq!(m.stability_function().largest_stable_step(C64::new(-1e6, 0.0)), None, "{}", m.id);
+        } else {
+            assert!(m.stability_limit() > 1.0, "{}", m.id);
+        }
     }
 }

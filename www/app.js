@@ -16,6 +16,7 @@ import { sheetStart, grid } from "./runinfo.js";
 import { autosave, loadAutosave, keepPrevious, loadPrevious, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
 import { renderAccuracy } from "./accuracy.js";
 import { initGuard, guarded } from "./guard.js";
+import { initGuide } from "./guide.js";
 
 // The page exactly as it arrived, for the single-file download (captured
 // before anything below changes the document).
@@ -348,6 +349,7 @@ function initPage() {
   $("method").replaceChildren(...METHODS.map(([id, name]) => el("option", { value: id }, name)));
   $("examples").append(...EXAMPLES.map((e) => el("option", { value: e.id }, e.title)));
   initEditor(edited);
+  initGuide();
   initRunner();
   initTimeView();
   initFieldView();

@@ -92,7 +92,7 @@ fn pass() -> Vec<serde_json::Value> {
         row.insert("reference".into(), serde_json::json!(reference));
         rows.push(serde_json::Value::Object(row));
         // The hand-written baseline of the same method.
-        let (Some(f), Some(tab), Some(tp)) = (bench_rhs(c.problem), method(c.method).and_then(|m| m.tableau), ratebook::problems::by_name(c.problem)) else {
+        let (Some(f), Some(tab), Some(tp)) = (bench_rhs(c.problem), method(c.method).and_then(|m| m.tableau()), ratebook::problems::by_name(c.problem)) else {
             continue;
         };
         let y0 = tp.y0.clone();

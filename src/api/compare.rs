@@ -10,11 +10,10 @@
 use serde::{Deserialize, Serialize};
 
 use super::{solve, ApiError, RunReport, RunRequest};
-use crate::solve::SolveError;
 
 /// A request setting out of range, as the API reports it.
 pub(super) fn invalid(field: &'static str, reason: impl Into<String>) -> ApiError {
-    ApiError::Settings(SolveError::InvalidSettings { field, reason: reason.into() })
+    ApiError::Settings(crate::solve::invalid(field, reason))
 }
 
 /// What to compare.

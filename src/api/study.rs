@@ -7,6 +7,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::compare::invalid;
 use super::{ApiError, RunRequest};
 use crate::problem::Problem;
 use crate::sheet::Model;
@@ -63,10 +64,6 @@ pub struct RegionReport {
 fn model_and_settings(sheet: &str, req: &StudyRequest) -> Result<(Model, Settings), ApiError> {
     let model = super::model(sheet, &req.run)?;
     Ok((model, Settings { at: None, ..super::settings(&req.run) }))
-}
-
-fn invalid(field: &'static str, reason: String) -> ApiError {
-    ApiError::Settings(SolveError::InvalidSettings { field, reason })
 }
 
 /// How a study reports its progress: `(done, total)` in right-hand-side

@@ -4,8 +4,9 @@
 //! The policy plugs into the driver as a [`Switching`]: the driver runs the
 //! current method through its normal machinery (events, `at` output, extrema,
 //! non-finite handling) and asks the policy after each accepted step whether
-//! to change method; it records each change as an `info` diagnostic
-//! `method-switch` with its `t`.
+//! to change method. The policy names the method by its registry id; the
+//! driver looks it up (an id missing from the registry fails the run) and
+//! records each change as an `info` diagnostic `method-switch` with its `t`.
 //!
 //! - **To the implicit method:** when Hairer's stiffness test fires on the
 //!   explicit steps (`StepReport::stiff`: 15 recent steps with `|h·λ|` at the
@@ -19,7 +20,6 @@
 //!   hysteresis (a stricter bound and more steps than the test that switched
 //!   in) keeps `auto` from flapping between methods.
 
-use super::methods::{method, MethodInfo};
 use super::{StepReport, Switching};
 
 /// The explicit method of `auto`.
@@ -48,13 +48,13 @@ pub fn policy() -> Box<dyn Switching> {
 }
 
 impl Switching for Auto {
-    fn review(&mut self, report: &StepReport) -> Option<&'static MethodInfo> {
+    fn review(&mut self, report: &StepReport) -> Option<&'static str> {
         if !report.method.implicit {
             self.calm = 0;
             if report.stability_limit > 0.0 {
                 self.explicit_limit = report.stability_limit;
             }
-            return if report.stiff { method(IMPLICIT) } else { None };
+            return report.stiff.then_some(IMPLICIT);
         }
         let limit = if self.explicit_limit > 0.0 { self.explicit_limit } else { 3.3 };
         match report.stiffness {
@@ -63,7 +63,7 @@ impl Switching for Auto {
         }
         if self.calm >= CALM_STEPS {
             self.calm = 0;
-            method(EXPLICIT)
+            Some(EXPLICIT)
         } else {
             None
         }

@@ -3,8 +3,7 @@
 //! The stepper returns a weighted RMS error norm `err` (≤ 1 is acceptable);
 //! this module alone decides the next `h`.
 
-use super::explicit::weighted_rms;
-use super::stepper::{max_of, min_of, Stats, Tolerance};
+use super::stepper::{max_of, min_of, weighted_rms, Stats, Tolerance};
 use crate::problem::Problem;
 
 /// The constants of the step-size controller for one method (see

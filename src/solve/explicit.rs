@@ -8,19 +8,6 @@ use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
 use super::tableau::{ErrorEstimate, Tableau};
 use crate::problem::Problem;
 
-/// Weighted RMS norm of `e` with weights `atol + rtol·max(|y_i|, |y_new_i|)`.
-pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64 {
-    if e.is_empty() {
-        return 0.0;
-    }
-    let mut s = 0.0;
-    for ((ei, yi), zi) in e.iter().zip(y).zip(y_new) {
-        let r = ei / tol.weight(*yi, *zi);
-        s += r * r;
-    }
-    (s / e.len() as f64).sqrt()
-}
-
 /// The non-zero entries `(j, w_j)` of a weight vector.
 fn sparse(w: &[f64]) -> Vec<(usize, f64)> {
     w.iter().enumerate().filter(|(_, x)| **x != 0.0).map(|(j, x)| (j, *x)).collect()
@@ -452,18 +439,5 @@ impl<const N: usize> ExplicitStepper<N> {
             }
         }
         self.dense_ready = true;
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn weighted_rms_matches_definition() {
-        let tol = Tolerance { relative: 0.5, absolute: 1.0 };
-        // weights 1 + 0.5·max(|y|,|z|) = 2 and 3
-        let v = weighted_rms(&[2.0, 3.0], &[2.0, 0.0], &[1.0, 4.0], &tol);
-        assert!((v - 1.0).abs() < 1e-15);
     }
 }

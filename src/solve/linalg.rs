@@ -1,7 +1,8 @@
 //! Dense linear algebra for the implicit methods: Jacobians (exact, or by
 //! finite differences when the model has none), iteration matrices and their
-//! LU factorization (partial pivoting, in reused storage). The weighted error norm
-//! is the explicit stepper's [`super::explicit::weighted_rms`].
+//! LU factorization (partial pivoting, in reused storage), and power iteration
+//! for the dominant eigenvalue. The weighted error norm is
+//! [`super::stepper::weighted_rms`], beside the tolerance weights.
 //!
 //! Storage follows [`crate::problem`]: a Jacobian is row-major,
 //! `jac[i * n + j] = ∂f_i/∂y_j`.
@@ -116,25 +117,104 @@ impl Derivatives {
         for (i, vi) in v.iter_mut().enumerate() {
             *vi = 1.0 + 0.37 * i as f64;
         }
-        for step in 0..8 {
-            for (wi, row) in w.iter_mut().zip(self.jac.chunks_exact(n)) {
-                *wi = row.iter().zip(v.iter()).map(|(a, b)| a * b).sum::<f64>();
-            }
-            if step == 7 {
-                break;
-            }
+        let rescaled = power_iteration(&self.jac, v, w, 7, |v, w| {
             let top = inf_norm(w);
             if top == 0.0 || !top.is_finite() {
-                return if top == 0.0 { 0.0 } else { f64::INFINITY };
+                return Err(if top == 0.0 { 0.0 } else { f64::INFINITY });
             }
             let inv = 1.0 / top;
-            for (vi, wi) in v.iter_mut().zip(w.iter()) {
+            for (vi, wi) in v.iter_mut().zip(w) {
                 *vi = wi * inv;
             }
+            Ok(())
+        });
+        if let Err(radius) = rescaled {
+            return radius;
         }
-        let norm = |x: &[f64]| x.iter().map(|x| x * x).sum::<f64>().sqrt();
-        norm(w) / norm(v)
+        matvec(&self.jac, v, w);
+        dot(w, w).sqrt() / dot(v, v).sqrt()
     }
+}
+
+/// `w = J v` for the row-major `n × n` matrix `jac`, `n = v.len() ≥ 1`.
+fn matvec(jac: &[f64], v: &[f64], w: &mut [f64]) {
+    for (wi, row) in w.iter_mut().zip(jac.chunks_exact(v.len())) {
+        *wi = row.iter().zip(v).map(|(a, b)| a * b).sum::<f64>();
+    }
+}
+
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    a.iter().zip(b).map(|(x, y)| x * y).sum()
+}
+
+/// Power iteration, the one loop of [`Derivatives::spectral_radius`] and
+/// [`dominant_eigenvalue`]: `rounds` times `w = J v`, then `rescale(v, w)`
+/// writes the next `v` from `w`, or stops the iteration with `Err`.
+fn power_iteration<E>(
+    jac: &[f64],
+    v: &mut [f64],
+    w: &mut [f64],
+    rounds: usize,
+    mut rescale: impl FnMut(&mut [f64], &[f64]) -> Result<(), E>,
+) -> Result<(), E> {
+    for _ in 0..rounds {
+        matvec(jac, v, w);
+        rescale(v, w)?;
+    }
+    Ok(())
+}
+
+/// The eigenvalue of largest modulus of the `n × n` row-major matrix `j`, as
+/// `(re, im)`, by power iteration. A dominant complex pair (an oscillation) is
+/// found from three successive iterates `u, Ju, J²u`: `λ² = p λ + q` with
+/// `p, q` fitted by least squares to `J²u ≈ p·Ju + q·u`. A fixed 80 iterations
+/// from a fixed start vector; `None` for a zero or non-finite matrix.
+pub fn dominant_eigenvalue(j: &[f64], n: usize) -> Option<(f64, f64)> {
+    if n == 0 || j.iter().any(|v| !v.is_finite()) {
+        return None;
+    }
+    let mut u: Vec<f64> = (0..n).map(|i| 1.0 + 0.1 * ((i * 7 + 3) % 11) as f64).collect();
+    let mut v = vec![0.0; n];
+    let mut w = vec![0.0; n];
+    let normalized = power_iteration(j, &mut u, &mut v, 80, |u, v| {
+        let nv = dot(v, v).sqrt();
+        if nv == 0.0 || !nv.is_finite() {
+            return Err(if nv == 0.0 { Some((0.0, 0.0)) } else { None });
+        }
+        u.iter_mut().zip(v).for_each(|(a, b)| *a = b / nv);
+        Ok(())
+    });
+    if let Err(found) = normalized {
+        return found;
+    }
+    matvec(j, &u, &mut v);
+    matvec(j, &v, &mut w);
+    // Least squares for w ≈ p v + q u.
+    let (vv, vu, uu, wv, wu) = (dot(&v, &v), dot(&v, &u), dot(&u, &u), dot(&w, &v), dot(&w, &u));
+    let det = vv * uu - vu * vu;
+    if det.abs() <= 1e-10 * vv * uu {
+        return Some((vu / uu, 0.0));
+    }
+    let p = (wv * uu - wu * vu) / det;
+    let q = (vv * wu - vu * wv) / det;
+    let disc = p * p + 4.0 * q;
+    if disc >= 0.0 {
+        let s = disc.sqrt();
+        let (l1, l2) = (0.5 * (p + s), 0.5 * (p - s));
+        Some((if l1.abs() >= l2.abs() { l1 } else { l2 }, 0.0))
+    } else {
+        Some((0.5 * p, 0.5 * (-disc).sqrt()))
+    }
+}
+
+/// The Jacobian `∂f/∂y` at `(t, y)`: exact when the problem gives one, else by
+/// forward differences (`dim + 1` evaluations of `f`, counted in `stats`); see
+/// [`Derivatives::jacobian_at`]. Non-finite entries are returned as they are
+/// ([`dominant_eigenvalue`] refuses them).
+pub fn jacobian(problem: &mut dyn Problem, t: f64, y: &[f64], stats: &mut Stats) -> Vec<f64> {
+    let mut d = Derivatives::new(y.len());
+    let _ = d.jacobian_at(problem, t, y, stats);
+    d.jac
 }
 
 /// Evaluate the rates `out = f(t, y)` (counted); a non-finite value is a
@@ -476,6 +556,16 @@ mod tests {
         }
         assert!((d.dfdt[1] - y[1]).abs() < 1e-6 && d.dfdt[0].abs() < 1e-6);
         assert_eq!((stats.rhs_evals, stats.jacobians), (3, 1));
+    }
+
+    #[test]
+    fn power_iteration_on_rotation_and_decay() {
+        // Analytic: [[-1, 10], [-10, -1]] has eigenvalues -1 ± 10i.
+        let (re, im) = dominant_eigenvalue(&[-1.0, 10.0, -10.0, -1.0], 2).unwrap();
+        assert!((re + 1.0).abs() < 1e-9 && (im.abs() - 10.0).abs() < 1e-9, "{re} {im}");
+        // Analytic: diag(-1000, -1) has dominant eigenvalue -1000.
+        let (re, im) = dominant_eigenvalue(&[-1000.0, 0.0, 0.0, -1.0], 2).unwrap();
+        assert!((re + 1000.0).abs() < 1e-6 && im == 0.0, "{re} {im}");
     }
 
     #[test]

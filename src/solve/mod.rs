@@ -2,14 +2,23 @@
 //! output, event location and the driver that runs them.
 //!
 //! # The pieces
+//! - [`methods`]: the registry ([`methods()`], [`method`]); each entry points
+//!   at its family's data ([`methods::Family`]), from which its order, error
+//!   order, controller constants, stability function and limit are read.
 //! - [`tableau`]: explicit Runge–Kutta methods as data (exact fractions).
 //! - [`explicit`]: the one generic stepper that runs any tableau.
-//! - [`stepper`]: the [`Stepper`](stepper::Stepper) contract every method implements.
+//! - [`implicit`]: the implicit Runge–Kutta families, one file each (the
+//!   θ-methods, Radau IIA), with their shared Newton control.
+//! - [`rosenbrock`]: the Rosenbrock methods (linearly implicit).
+//! - [`stepper`]: the [`Stepper`](stepper::Stepper) contract every method
+//!   implements, the tolerances and the weighted error norm.
 //! - [`control`]: the PI step-size controller and the automatic initial step.
+//! - [`linalg`]: Jacobians, LU factorization and power iteration.
 //! - [`locate`]: root finding and peak finding on the dense output.
-//! - [`stability`]: stability regions and the dominant eigenvalue of the Jacobian.
-//! - [`methods`]: the registry ([`methods()`], [`method`]).
-//! - `driver`: [`solve`], the loop that ties them together.
+//! - [`stability`]: stability functions and regions.
+//! - [`auto`]: the switching policy of the `auto` method.
+//! - `run`: [`solve`], the driver, split by concern (validation, output,
+//!   events, switches, extrema, the stiffness and growth watch, the loop).
 //!
 //! # How a run goes
 //! [`solve`] checks the [`Settings`], builds the stepper of the chosen method
@@ -21,36 +30,39 @@
 //! bounded by `max_steps`; failures come back as [`Status::Failed`] with the
 //! trajectory up to the failure.
 //!
-//! # Plugging in the stiff methods and `auto`
-//! - A stiff method is a type implementing [`stepper::Stepper`] plus one
-//!   [`MethodInfo`] entry in the registry in `methods.rs` with
-//!   `tableau: None`, `implicit: true` and `build` returning the boxed
-//!   stepper. The driver uses `embedded_order + 1` as the order of its error
-//!   estimate for the PI controller. Stats such as `jacobians` and
-//!   `factorizations` are counted by the stepper in the `stats` it is given.
+//! # Adding a method, and switching between methods
+//! - A method is its family's data (a [`tableau::Tableau`], a
+//!   [`implicit::RadauTableau`], …) plus one [`MethodInfo`] entry in the
+//!   registry in `methods.rs`; a new family is a type implementing
+//!   [`stepper::Stepper`] and a [`methods::Family`] variant. Stats such as
+//!   `jacobians` and `factorizations` are counted by the stepper in the
+//!   `stats` it is given.
 //! - Switching method mid-run: a [`MethodInfo`] may carry
 //!   `switching: Some(make_policy)`. The driver calls
 //!   [`Switching::review`] after every accepted step with a [`StepReport`]
 //!   (which includes the stiffness test's verdict); when it returns another
-//!   method, the driver builds that method's stepper, resets the controller's
-//!   history, keeps the current `h`, records an `Info` diagnostic
-//!   `method-switch` and continues from the current point. The `auto` entry
-//!   runs Dormand–Prince 5(4) with no policy until one is plugged in.
+//!   method's id, the driver looks it up (an unknown id fails the run),
+//!   builds that method's stepper, resets the controller's history, keeps the
+//!   current `h`, records an `Info` diagnostic `method-switch` and continues
+//!   from the current point. `auto` ([`auto::Auto`]) runs Dormand–Prince 5(4)
+//!   and switches to Radau IIA 5 while the problem is stiff.
 
 pub mod auto;
 pub mod control;
-mod driver;
 pub mod explicit;
 pub mod implicit;
 pub mod linalg;
 pub mod locate;
 pub mod methods;
 pub mod rosenbrock;
+mod run;
 pub mod stability;
 pub mod stepper;
 pub mod tableau;
+#[cfg(test)]
+pub(crate) mod testing;
 
-pub use driver::solve;
+pub use run::{invalid, solve};
 pub use methods::{method, methods, MethodInfo};
 pub use stepper::{Stats, Tolerance};
 
@@ -374,7 +386,8 @@ pub struct StepReport {
 
 /// A policy that may change method during a run (the `auto` method).
 pub trait Switching {
-    /// Called after every accepted step; return the method to continue with,
-    /// or `None` to keep the current one.
-    fn review(&mut self, report: &StepReport) -> Option<&'static MethodInfo>;
+    /// Called after every accepted step; return the registry id of the method
+    /// to continue with, or `None` to keep the current one. The driver looks
+    /// the id up; one missing from the registry fails the run.
+    fn review(&mut self, report: &StepReport) -> Option<&'static str>;
 }

@@ -18,9 +18,9 @@
 // Index loops here mirror the formulas they implement.
 #![allow(clippy::needless_range_loop)]
 
-use super::explicit::weighted_rms;
 use super::linalg::{rates, shifted, Derivatives, Factored};
-use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
+use super::stability::StabilityFunction;
+use super::stepper::{weighted_rms, Attempt, Stats, StepFault, Stepper, Tolerance};
 use crate::problem::Problem;
 
 /// A Rosenbrock method in implementation form, with its facts.
@@ -56,6 +56,16 @@ impl RosenbrockTableau {
     /// Number of stages.
     pub fn stages(&self) -> usize {
         self.c.len()
+    }
+
+    /// The stability function (see [`StabilityFunction::Rosenbrock`]).
+    pub fn stability_function(&self) -> StabilityFunction {
+        StabilityFunction::Rosenbrock {
+            gamma: self.gamma,
+            a: self.a.iter().map(|r| r.to_vec()).collect(),
+            coupling: self.c_coupling.iter().map(|r| r.to_vec()).collect(),
+            b: self.b.to_vec(),
+        }
     }
 }
 
@@ -107,11 +117,6 @@ pub static RODAS4: RosenbrockTableau = RosenbrockTableau {
     ],
     reference: "Hairer & Wanner, Solving ODEs II, Sec. VI.4 (RODAS); coefficients of rodas.f RODCOE METH=1",
 };
-
-/// Builds a [`RODAS4`] stepper for `dim` states (the registry's `build`).
-pub fn build_rodas4(dim: usize) -> Box<dyn Stepper> {
-    Box::new(Rosenbrock::new(&RODAS4, dim))
-}
 
 /// A Rosenbrock stepper running one [`RosenbrockTableau`].
 ///
@@ -277,7 +282,7 @@ impl Stepper for Rosenbrock {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::solve::implicit::testing::{exact_solution, fit_order, fixed_step_error, nonlinear_exact, DenseCheck};
+    use crate::solve::testing::{exact_solution, fit_order, fixed_step_error, nonlinear_exact, DenseCheck};
 
     #[test]
     fn tableau_rows_are_consistent() {

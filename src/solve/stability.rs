@@ -1,8 +1,9 @@
 //! Linear stability of one-step methods: the stability function `R(z)`, the
-//! largest stable step for a given eigenvalue, and the dominant eigenvalue of
-//! the Jacobian by power iteration. The driver uses them to warn about
-//! unstable fixed steps and to set the threshold of the stiffness test; the
-//! studies (`crate::study::stability`) draw the regions from them.
+//! largest stable step for a given eigenvalue. The driver uses them to warn
+//! about unstable fixed steps (with the dominant eigenvalue of the Jacobian
+//! from [`super::linalg::dominant_eigenvalue`]) and to set the threshold of
+//! the stiffness test; the studies (`crate::study::stability`) draw the
+//! regions from them.
 //!
 //! Applied to the test equation `y' = λy`, every Runge–Kutta or Rosenbrock
 //! method gives `y_{n+1} = R(hλ) y_n`. With stage matrix `A` and weights `b`,
@@ -14,9 +15,6 @@
 
 use nalgebra::{Complex, DMatrix, DVector};
 
-use super::linalg::Derivatives;
-use super::stepper::Stats;
-use crate::problem::Problem;
 
 /// A complex number.
 pub type C64 = Complex<f64>;
@@ -207,75 +205,9 @@ pub fn boundary_radius(g: &[f64], phi: f64) -> f64 {
     StabilityFunction::from_increments(g).stable_reach(C64::from_polar(1.0, phi)).unwrap_or(f64::INFINITY)
 }
 
-/// The Jacobian `∂f/∂y` at `(t, y)`: exact when the problem gives one, else by
-/// forward differences (`dim + 1` evaluations of `f`, counted in `stats`); see
-/// [`Derivatives::jacobian_at`]. Non-finite entries are returned as they are.
-pub fn jacobian(problem: &mut dyn Problem, t: f64, y: &[f64], stats: &mut Stats) -> Vec<f64> {
-    let mut d = Derivatives::new(y.len());
-    // A non-finite Jacobian is returned as it is: `dominant_eigenvalue` refuses it.
-    let _ = d.jacobian_at(problem, t, y, stats);
-    d.jac
-}
-
-fn matvec(j: &[f64], x: &[f64], out: &mut [f64]) {
-    let n = x.len();
-    for (i, o) in out.iter_mut().enumerate() {
-        *o = j[i * n..(i + 1) * n].iter().zip(x).map(|(a, b)| a * b).sum();
-    }
-}
-
-fn dot(a: &[f64], b: &[f64]) -> f64 {
-    a.iter().zip(b).map(|(x, y)| x * y).sum()
-}
-
-/// The eigenvalue of largest modulus of the `n × n` row-major matrix `j`, as
-/// `(re, im)`, by power iteration. A dominant complex pair (an oscillation) is
-/// found from three successive iterates `u, Ju, J²u`: `λ² = p λ + q` with
-/// `p, q` fitted by least squares to `J²u ≈ p·Ju + q·u`. A fixed 80 iterations
-/// from a fixed start vector; `None` for a zero or non-finite matrix.
-pub fn dominant_eigenvalue(j: &[f64], n: usize) -> Option<(f64, f64)> {
-    if n == 0 || j.iter().any(|v| !v.is_finite()) {
-        return None;
-    }
-    let mut u: Vec<f64> = (0..n).map(|i| 1.0 + 0.1 * ((i * 7 + 3) % 11) as f64).collect();
-    let mut v = vec![0.0; n];
-    let mut w = vec![0.0; n];
-    for _ in 0..80 {
-        matvec(j, &u, &mut v);
-        let nv = dot(&v, &v).sqrt();
-        if nv == 0.0 || !nv.is_finite() {
-            return if nv == 0.0 { Some((0.0, 0.0)) } else { None };
-        }
-        u.iter_mut().zip(&v).for_each(|(a, b)| *a = b / nv);
-    }
-    matvec(j, &u, &mut v);
-    matvec(j, &v, &mut w);
-    // Least squares for w ≈ p v + q u.
-    let (vv, vu, uu, wv, wu) = (dot(&v, &v), dot(&v, &u), dot(&u, &u), dot(&w, &v), dot(&w, &u));
-    let det = vv * uu - vu * vu;
-    let real = || {
-        let l = vu / uu;
-        Some((l, 0.0))
-    };
-    if det.abs() <= 1e-10 * vv * uu {
-        return real();
-    }
-    let p = (wv * uu - wu * vu) / det;
-    let q = (vv * wu - vu * wv) / det;
-    let disc = p * p + 4.0 * q;
-    if disc >= 0.0 {
-        let s = disc.sqrt();
-        let (l1, l2) = (0.5 * (p + s), 0.5 * (p - s));
-        Some((if l1.abs() >= l2.abs() { l1 } else { l2 }, 0.0))
-    } else {
-        Some((0.5 * p, 0.5 * (-disc).sqrt()))
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::solve::tableau::{EULER, RK4};
 
     fn euler() -> StabilityFunction {
         StabilityFunction::explicit(&[&[]], &[1.0])
@@ -327,63 +259,5 @@ mod tests {
         assert_eq!(tr.largest_stable_step(C64::new(-1.0, 0.0)), None);
         // Backward Euler is stable for positive real z > 2 too, but not on (0, 2): the ray exits at once.
         assert_eq!(be.stable_reach(C64::new(1.0, 0.0)), Some(0.0));
-    }
-
-    #[test]
-    fn rk4_real_boundary() {
-        // RK4's real stability interval ends at about -2.785 (Hairer & Wanner,
-        // Solving ODEs II, Sec. IV.2, Fig. 2.1; value from memory).
-        let r = boundary_radius(&RK4.stability_polynomial(), std::f64::consts::PI);
-        assert!((r - 2.785).abs() < 1e-3, "{r}");
-        // Euler: the disc |1 + z| ≤ 1 meets the negative real axis at -2 (analytic).
-        let r = boundary_radius(&EULER.stability_polynomial(), std::f64::consts::PI);
-        assert!((r - 2.0).abs() < 1e-9, "{r}");
-        // Euler is unstable on the imaginary axis (analytic: |1 + iy| > 1).
-        assert_eq!(boundary_radius(&EULER.stability_polynomial(), 0.5 * std::f64::consts::PI), 0.0);
-    }
-
-    #[test]
-    fn power_iteration_on_rotation_and_decay() {
-        // Analytic: [[-1, 10], [-10, -1]] has eigenvalues -1 ± 10i.
-        let (re, im) = dominant_eigenvalue(&[-1.0, 10.0, -10.0, -1.0], 2).unwrap();
-        assert!((re + 1.0).abs() < 1e-9 && (im.abs() - 10.0).abs() < 1e-9, "{re} {im}");
-        // Analytic: diag(-1000, -1) has dominant eigenvalue -1000.
-        let (re, im) = dominant_eigenvalue(&[-1000.0, 0.0, 0.0, -1.0], 2).unwrap();
-        assert!((re + 1000.0).abs() < 1e-6 && im == 0.0, "{re} {im}");
-    }
-}
-
-#[cfg(test)]
-mod implicit_tests {
-    use super::*;
-    use crate::solve::implicit::RADAU5;
-    use crate::solve::rosenbrock::RODAS4;
-
-    fn rodas4() -> StabilityFunction {
-        StabilityFunction::Rosenbrock {
-            gamma: RODAS4.gamma,
-            a: RODAS4.a.iter().map(|r| r.to_vec()).collect(),
-            coupling: RODAS4.c_coupling.iter().map(|r| r.to_vec()).collect(),
-            b: RODAS4.b.to_vec(),
-        }
-    }
-
-    #[test]
-    fn rodas4_and_radau5_are_l_stable_and_accurate_near_zero() {
-        let radau = StabilityFunction::Stages {
-            a: RADAU5.a.iter().flatten().map(|x| x.value()).collect(),
-            b: RADAU5.a[2].iter().map(|x| x.value()).collect(),
-        };
-        for (f, order) in [(rodas4(), 4), (radau, 5)] {
-            // Order p: R(z) − e^z = O(z^(p+1)) (Hairer & Wanner, Solving ODEs II, Sec. IV.3).
-            for z in [0.01, -0.02] {
-                let d = (f.eval(C64::new(z, 0.0)) - C64::new(z, 0.0).exp()).norm();
-                assert!(d < 10.0 * z.abs().powi(order + 1), "{order} {z} {d}");
-            }
-            // L-stable: |R(z)| → 0 as z → −∞, and A-stable on the imaginary axis.
-            assert!(f.growth(C64::new(-1e8, 0.0)) < 1e-3);
-            assert!(f.growth(C64::new(-1e-3, 50.0)) <= 1.0);
-            assert_eq!(f.largest_stable_step(C64::new(-1e5, 1e3)), None);
-        }
     }
 }

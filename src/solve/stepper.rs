@@ -40,6 +40,21 @@ impl Tolerance {
     }
 }
 
+/// Weighted RMS norm of `e` with the weights of [`Tolerance::weight`]:
+/// `sqrt(mean((e_i / (atol + rtol·max(|y_i|, |y_new_i|)))²))`; a step is
+/// acceptable when it is ≤ 1.
+pub fn weighted_rms(e: &[f64], y: &[f64], y_new: &[f64], tol: &Tolerance) -> f64 {
+    if e.is_empty() {
+        return 0.0;
+    }
+    let mut s = 0.0;
+    for ((ei, yi), zi) in e.iter().zip(y).zip(y_new) {
+        let r = ei / tol.weight(*yi, *zi);
+        s += r * r;
+    }
+    (s / e.len() as f64).sqrt()
+}
+
 /// `a.max(b)` by comparison: the same value (a NaN operand is ignored, as
 /// `f64::max` does), without the call to `fmax` that `f64::max` becomes on
 /// wasm32. For the per-step paths.
@@ -155,5 +170,18 @@ pub trait Stepper {
         for (o, l) in out.iter_mut().zip(&lo) {
             *o = (*o - l) / (d * h);
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn weighted_rms_matches_definition() {
+        let tol = Tolerance { relative: 0.5, absolute: 1.0 };
+        // weights 1 + 0.5·max(|y|,|z|) = 2 and 3
+        let v = weighted_rms(&[2.0, 3.0], &[2.0, 0.0], &[1.0, 4.0], &tol);
+        assert!((v - 1.0).abs() < 1e-15);
     }
 }

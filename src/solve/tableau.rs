@@ -12,6 +12,7 @@
 //! [`Dense`]); the tests check the order conditions of both.
 
 use super::control::StepControl;
+use super::stability::StabilityFunction;
 
 /// The exact fraction `n / d`, evaluated at compile time to the nearest `f64`.
 pub const fn q(n: i64, d: i64) -> f64 {
@@ -120,6 +121,11 @@ impl Tableau {
     /// `R(z) = 1 + Σ_k γ_k z^k`, for `k = 1..=stages`.
     pub fn stability_polynomial(&self) -> Vec<f64> {
         super::stability::increments(self.a, self.b)
+    }
+
+    /// The stability function: the polynomial `1 + Σ_k γ_k z^k`.
+    pub fn stability_function(&self) -> StabilityFunction {
+        StabilityFunction::from_increments(&self.stability_polynomial())
     }
 }
 
@@ -605,5 +611,24 @@ impl Dense {
             Dense::Weights { order, .. } => *order,
             Dense::Dop853 { .. } => 7,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::solve::stability::boundary_radius;
+
+    #[test]
+    fn rk4_real_boundary() {
+        // RK4's real stability interval ends at about -2.785 (Hairer & Wanner,
+        // Solving ODEs II, Sec. IV.2, Fig. 2.1; value from memory).
+        let r = boundary_radius(&RK4.stability_polynomial(), std::f64::consts::PI);
+        assert!((r - 2.785).abs() < 1e-3, "{r}");
+        // Euler: the disc |1 + z| ≤ 1 meets the negative real axis at -2 (analytic).
+        let r = boundary_radius(&EULER.stability_polynomial(), std::f64::consts::PI);
+        assert!((r - 2.0).abs() < 1e-9, "{r}");
+        // Euler is unstable on the imaginary axis (analytic: |1 + iy| > 1).
+        assert_eq!(boundary_radius(&EULER.stability_polynomial(), 0.5 * std::f64::consts::PI), 0.0);
     }
 }

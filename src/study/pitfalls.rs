@@ -54,26 +54,7 @@ pub struct Found {
 
 /// The stability function of a registry method, when its coefficients are known.
 pub fn function_for(info: &MethodInfo) -> Option<StabilityFunction> {
-    if let Some(tab) = info.tableau {
-        return Some(StabilityFunction::explicit(tab.a, tab.b));
-    }
-    use crate::solve::implicit::{BACKWARD_EULER, RADAU5, TRAPEZOID};
-    use crate::solve::rosenbrock::RODAS4;
-    match info.id {
-        id if id == BACKWARD_EULER.id => Some(StabilityFunction::theta(BACKWARD_EULER.theta)),
-        id if id == TRAPEZOID.id => Some(StabilityFunction::theta(TRAPEZOID.theta)),
-        id if id == RADAU5.id => Some(StabilityFunction::Stages {
-            a: RADAU5.a.iter().flatten().map(|x| x.value()).collect(),
-            b: RADAU5.a[2].iter().map(|x| x.value()).collect(),
-        }),
-        id if id == RODAS4.id => Some(StabilityFunction::Rosenbrock {
-            gamma: RODAS4.gamma,
-            a: RODAS4.a.iter().map(|r| r.to_vec()).collect(),
-            coupling: RODAS4.c_coupling.iter().map(|r| r.to_vec()).collect(),
-            b: RODAS4.b.to_vec(),
-        }),
-        _ => None,
-    }
+    Some(info.stability_function())
 }
 
 /// Events that fired in one run and not in the other.

@@ -10,6 +10,7 @@ mod bench_emit;
 mod bench_stiff;
 mod emit;
 mod guard;
+mod language;
 
 fn to_js<T: serde::Serialize>(v: &T) -> Result<JsValue, JsValue> {
     let s = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true);

@@ -1,25 +1,15 @@
-//! Implicit Runge–Kutta methods solved by Newton iteration: the fixed-step
-//! backward Euler and trapezoidal rule (for comparison views), and the
-//! adaptive 3-stage Radau IIA method of order 5 (for tight tolerances).
-//!
-//! All use a simplified Newton iteration with the Jacobian at the start of the
-//! step and an LU-factored iteration matrix. The convergence test follows
-//! Hairer & Wanner, *Solving ODEs II*, Sec. IV.8 (common practice): with the
-//! observed contraction rate `θ_k = ‖ΔZ_k‖/‖ΔZ_{k-1}‖`, the iteration stops
-//! when `θ/(1-θ)·‖ΔZ‖ ≤ κ`, and fails when `θ ≥ 1` or when the predicted
-//! error after the remaining iterations stays above `κ`. Here
-//! `κ = max(10ε/rtol, min(0.03, √rtol))` in the weighted norm.
-//! A failed iteration returns [`StepFault::NewtonFailed`] so the driver
-//! shrinks `h` and retries; the iteration count is bounded, so it never hangs.
+//! Radau IIA of order 5: the tableau as exact data and its stepper, with the
+//! transformed Newton iteration and step and Jacobian reuse.
 // Index loops here mirror the formulas they implement.
 #![allow(clippy::needless_range_loop)]
 
 use nalgebra::Complex;
 
-use super::explicit::weighted_rms;
-use super::linalg::{rates, shifted, Derivatives, Factored};
-use super::stepper::{Attempt, Stats, StepFault, Stepper, Tolerance};
+use super::newton::{newton_kappa, Contraction, NewtonState, NEWTON_MAX_ITER};
 use crate::problem::Problem;
+use crate::solve::linalg::{rates, shifted, Derivatives, Factored};
+use crate::solve::stability::StabilityFunction;
+use crate::solve::stepper::{weighted_rms, Attempt, Stats, StepFault, Stepper, Tolerance};
 
 /// Radau keeps its factored Newton matrix while `h / h_factored` stays in
 /// `[REUSE_LOW, REUSE_HIGH]`: the simplified Newton iteration converges to the
@@ -28,241 +18,6 @@ use crate::problem::Problem;
 const REUSE_LOW: f64 = 0.8;
 /// See [`REUSE_LOW`].
 const REUSE_HIGH: f64 = 1.25;
-
-/// Most Newton iterations per attempt.
-const NEWTON_MAX_ITER: usize = 7;
-
-/// The Newton convergence bound `κ` for a tolerance (see the module doc).
-fn newton_kappa(tol: &Tolerance) -> f64 {
-    let rtol = tol.relative.max(1e-14);
-    (10.0 * f64::EPSILON / rtol).max(0.03f64.min(rtol.sqrt()))
-}
-
-/// The contraction bookkeeping of one Newton iteration.
-#[derive(Clone, Copy, Debug, Default)]
-struct Contraction {
-    last: Option<f64>,
-    rate: f64,
-}
-
-/// What one Newton iterate says about convergence.
-enum NewtonState {
-    Converged,
-    Going,
-    Failed,
-}
-
-impl Contraction {
-    /// Feed the weighted norm of the latest increment (iteration `k`, from 0).
-    fn update(&mut self, norm: f64, k: usize, kappa: f64) -> NewtonState {
-        if !norm.is_finite() {
-            return NewtonState::Failed;
-        }
-        let state = match self.last {
-            _ if norm == 0.0 => NewtonState::Converged,
-            None => NewtonState::Going,
-            Some(prev) => {
-                let rate = norm / prev;
-                self.rate = rate;
-                if rate >= 1.0 || rate.powi((NEWTON_MAX_ITER - k) as i32) / (1.0 - rate) * norm > kappa {
-                    NewtonState::Failed
-                } else if rate / (1.0 - rate) * norm <= kappa {
-                    NewtonState::Converged
-                } else {
-                    NewtonState::Going
-                }
-            }
-        };
-        self.last = Some(norm);
-        state
-    }
-}
-
-/// A fixed-step one-stage θ-method: `y1 = y0 + h[(1-θ) f(t0, y0) + θ f(t1, y1)]`.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct ThetaMethod {
-    /// Stable method id.
-    pub id: &'static str,
-    /// The implicitness `θ`: 1 for backward Euler, 1/2 for the trapezoidal rule.
-    pub theta: f64,
-    /// Order of the method.
-    pub order: u32,
-    /// Where the method is described.
-    pub reference: &'static str,
-}
-
-/// Backward (implicit) Euler, `backward-euler`: order 1, one stage, L-stable. Fixed
-/// step with the user's `h`; for comparison views, to show a method that
-/// stays stable at any `h` on a stiff decay. Dense output is linear.
-/// Source: Hairer & Wanner, *Solving ODEs II*, Sec. IV.3 (implicit Euler;
-/// section from memory).
-pub static BACKWARD_EULER: ThetaMethod =
-    ThetaMethod { id: "backward-euler", theta: 1.0, order: 1, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (implicit Euler)" };
-
-/// Trapezoidal rule, `trapezoid`: order 2, A-stable but not L-stable (stiff
-/// components are not damped, they flip sign each step). Fixed step with the
-/// user's `h`; for comparison views. Dense output is the cubic Hermite
-/// interpolant. Source: Hairer & Wanner, *Solving ODEs II*, Sec. IV.3
-/// (trapezoidal rule; section from memory).
-pub static TRAPEZOID: ThetaMethod =
-    ThetaMethod { id: "trapezoid", theta: 0.5, order: 2, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (trapezoidal rule)" };
-
-/// Builds a [`BACKWARD_EULER`] stepper for `dim` states (the registry's `build`).
-pub fn build_beuler(dim: usize) -> Box<dyn Stepper> {
-    Box::new(ThetaStepper::new(&BACKWARD_EULER, dim))
-}
-
-/// Builds a [`TRAPEZOID`] stepper for `dim` states (the registry's `build`).
-pub fn build_trapezoid(dim: usize) -> Box<dyn Stepper> {
-    Box::new(ThetaStepper::new(&TRAPEZOID, dim))
-}
-
-/// Builds a [`RADAU5`] stepper for `dim` states (the registry's `build`).
-pub fn build_radau5(dim: usize) -> Box<dyn Stepper> {
-    Box::new(Radau::new(dim))
-}
-
-/// The stepper of a [`ThetaMethod`]. The Jacobian is taken at the start of
-/// each step; the iteration matrix `I - θhJ` is factored once per step.
-#[derive(Debug)]
-pub struct ThetaStepper {
-    method: &'static ThetaMethod,
-    deriv: Derivatives,
-    m: Factored,
-    at_point: bool,
-    /// The spectral radius at the last Jacobian; `None` when not estimated.
-    rho: Option<f64>,
-    f0: Vec<f64>,
-    f1: Vec<f64>,
-    delta: Vec<f64>,
-    /// `[y0, y1, h·f0, h·f1]` of the last successful attempt.
-    trial: [Vec<f64>; 4],
-}
-
-impl ThetaStepper {
-    /// A stepper for `n` states.
-    pub fn new(method: &'static ThetaMethod, n: usize) -> Self {
-        let z = || vec![0.0; n];
-        ThetaStepper {
-            method,
-            deriv: Derivatives::new(n),
-            m: Factored::default(),
-            at_point: false,
-            rho: Some(0.0),
-            f0: z(),
-            f1: z(),
-            delta: z(),
-            trial: [z(), z(), z(), z()],
-        }
-    }
-}
-
-impl Stepper for ThetaStepper {
-    fn attempt(
-        &mut self,
-        problem: &mut dyn Problem,
-        t: f64,
-        y: &[f64],
-        h: f64,
-        tol: &Tolerance,
-        y_new: &mut [f64],
-        stats: &mut Stats,
-    ) -> Result<Attempt, StepFault> {
-        let n = y.len();
-        let th = self.method.theta;
-        if !self.at_point {
-            rates(problem, t, y, &mut self.f0, stats)?;
-            self.deriv.jacobian(problem, t, y, &self.f0, stats)?;
-            if let Some(r) = self.rho.as_mut() {
-                *r = self.deriv.spectral_radius();
-            }
-            self.at_point = true;
-        }
-        self.m.factor(n, shifted(&self.deriv.jac, n, 1.0, th * h), stats)?;
-        let kappa = newton_kappa(tol);
-        y_new.copy_from_slice(y);
-        let mut conv = Contraction::default();
-        let mut converged = false;
-        for k in 0..NEWTON_MAX_ITER {
-            rates(problem, t + h, y_new, &mut self.f1, stats)?;
-            for i in 0..n {
-                self.delta[i] = -(y_new[i] - y[i] - h * ((1.0 - th) * self.f0[i] + th * self.f1[i]));
-            }
-            if self.m.solve(&mut self.delta).is_err() {
-                break;
-            }
-            for i in 0..n {
-                y_new[i] += self.delta[i];
-            }
-            match conv.update(weighted_rms(&self.delta, y, y_new, tol), k, kappa) {
-                NewtonState::Converged => {
-                    converged = true;
-                    break;
-                }
-                NewtonState::Failed => break,
-                NewtonState::Going => {}
-            }
-        }
-        if !converged {
-            return Err(StepFault::NewtonFailed);
-        }
-        if !y_new.iter().all(|v| v.is_finite()) {
-            return Err(StepFault::NonFinite);
-        }
-        for i in 0..n {
-            // At convergence f(t1, y1) follows from the method's own formula.
-            let hf1 = if th == 1.0 { y_new[i] - y[i] } else { ((y_new[i] - y[i]) - (1.0 - th) * h * self.f0[i]) / th };
-            self.trial[0][i] = y[i];
-            self.trial[1][i] = y_new[i];
-            self.trial[2][i] = h * self.f0[i];
-            self.trial[3][i] = hf1;
-        }
-        Ok(Attempt { error: None, stiffness: self.rho.map(|r| h.abs() * r) })
-    }
-
-    fn set_stiffness_estimate(&mut self, on: bool) {
-        self.rho = on.then_some(0.0);
-    }
-
-    fn accept(&mut self) {
-        self.at_point = false;
-    }
-
-    fn restart(&mut self) {
-        self.at_point = false;
-    }
-
-    fn dense(&self, theta: f64, out: &mut [f64]) {
-        let [y0, y1, hf0, hf1] = &self.trial;
-        if self.method.theta == 1.0 {
-            for k in 0..out.len() {
-                out[k] = y0[k] + theta * (y1[k] - y0[k]);
-            }
-        } else {
-            // Cubic Hermite interpolation on [y0, h f0, y1, h f1].
-            let (s, s2, s3) = (theta, theta * theta, theta * theta * theta);
-            let (h00, h10, h01, h11) = (2.0 * s3 - 3.0 * s2 + 1.0, s3 - 2.0 * s2 + s, -2.0 * s3 + 3.0 * s2, s3 - s2);
-            for k in 0..out.len() {
-                out[k] = h00 * y0[k] + h10 * hf0[k] + h01 * y1[k] + h11 * hf1[k];
-            }
-        }
-    }
-
-    fn dense_slope(&self, theta: f64, h: f64, out: &mut [f64]) {
-        let [y0, y1, hf0, hf1] = &self.trial;
-        if self.method.theta == 1.0 {
-            for k in 0..out.len() {
-                out[k] = (y1[k] - y0[k]) / h;
-            }
-        } else {
-            let (s, s2) = (theta, theta * theta);
-            let (d00, d10, d01, d11) = (6.0 * s2 - 6.0 * s, 3.0 * s2 - 4.0 * s + 1.0, -6.0 * s2 + 6.0 * s, 3.0 * s2 - 2.0 * s);
-            for k in 0..out.len() {
-                out[k] = (d00 * y0[k] + d10 * hf0[k] + d01 * y1[k] + d11 * hf1[k]) / h;
-            }
-        }
-    }
-}
 
 /// A number `(p + q·√6) / r`, exact data for the Radau IIA coefficients.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -361,6 +116,12 @@ pub static RADAU5: RadauTableau = RadauTableau {
 };
 
 impl RadauTableau {
+    /// The stability function `R(z) = 1 + z bᵀ (I − zA)⁻¹ 𝟙`, with `b` the
+    /// last row of `a` (stiffly accurate).
+    pub fn stability_function(&self) -> StabilityFunction {
+        StabilityFunction::Stages { a: self.a.iter().flatten().map(|x| x.value()).collect(), b: self.a[2].iter().map(|x| x.value()).collect() }
+    }
+
     /// The real eigenvalue `γ0` of `a`: `1/(3 + 3^(2/3) - 3^(1/3))`.
     pub fn gamma0(&self) -> f64 {
         1.0 / (3.0 + 3f64.powf(2.0 / 3.0) - 3f64.cbrt())
@@ -773,163 +534,11 @@ impl Stepper for Radau {
     }
 }
 
-/// Helpers for the steppers' unit tests: a smooth nonlinear problem with an
-/// exact solution and exact derivatives, fixed-step runs and order fits.
-#[cfg(test)]
-pub(crate) mod testing {
-    use super::*;
-
-    /// The exact solution `u(t) = (cos t, 1 + sin(2t)/2)` of [`nonlinear_exact`].
-    pub fn exact_solution(t: f64) -> [f64; 2] {
-        [t.cos(), 1.0 + (2.0 * t).sin() / 2.0]
-    }
-
-    fn exact_rate(t: f64) -> [f64; 2] {
-        [-t.sin(), (2.0 * t).cos()]
-    }
-
-    /// `f(t, y) = u'(t) + A(y - u) + ½(y0 y1 - u0 u1)(1, -1)` with
-    /// `A = [[-2, 1], [1, -3]]`: nonlinear, non-autonomous, solved exactly by
-    /// `u` (constructed so; analytic).
-    pub struct Manufactured;
-
-    const A: [[f64; 2]; 2] = [[-2.0, 1.0], [1.0, -3.0]];
-
-    impl Problem for Manufactured {
-        fn dim(&self) -> usize {
-            2
-        }
-        fn state_names(&self) -> &[String] {
-            &[]
-        }
-        fn rhs(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-            let (u, du) = (exact_solution(t), exact_rate(t));
-            let c = 0.5 * (y[0] * y[1] - u[0] * u[1]);
-            for i in 0..2 {
-                dy[i] = du[i] + A[i][0] * (y[0] - u[0]) + A[i][1] * (y[1] - u[1]) + if i == 0 { c } else { -c };
-            }
-        }
-        fn jacobian(&mut self, _t: f64, y: &[f64], jac: &mut [f64]) -> bool {
-            jac.copy_from_slice(&[A[0][0] + 0.5 * y[1], A[0][1] + 0.5 * y[0], A[1][0] - 0.5 * y[1], A[1][1] - 0.5 * y[0]]);
-            true
-        }
-        fn time_derivative(&mut self, t: f64, _y: &[f64], dfdt: &mut [f64]) -> bool {
-            let (u, du) = (exact_solution(t), exact_rate(t));
-            let ddu = [-t.cos(), -2.0 * (2.0 * t).sin()];
-            let dc = 0.5 * (du[0] * u[1] + u[0] * du[1]);
-            for i in 0..2 {
-                dfdt[i] = ddu[i] - A[i][0] * du[0] - A[i][1] * du[1] - if i == 0 { dc } else { -dc };
-            }
-            true
-        }
-    }
-
-    /// The manufactured problem.
-    pub fn nonlinear_exact() -> Manufactured {
-        Manufactured
-    }
-
-    /// Where to measure in [`fixed_step_error`].
-    pub enum DenseCheck {
-        /// The global error at `t = 1`.
-        None,
-        /// The dense-output error at `θ` of a single step of size `1/m` from `t = 0`.
-        Local(f64),
-    }
-
-    /// `m` fixed steps of `1/m` over `[0, 1]` on the manufactured problem.
-    pub fn fixed_step_error(st: &mut dyn Stepper, m: usize, check: DenseCheck) -> f64 {
-        let mut p = nonlinear_exact();
-        let h = 1.0 / m as f64;
-        let tol = Tolerance { relative: 1e-12, absolute: 1e-12 };
-        let mut y = exact_solution(0.0).to_vec();
-        let mut y1 = y.clone();
-        let mut stats = Stats::default();
-        let steps = if let DenseCheck::Local(_) = check { 1 } else { m };
-        for k in 0..steps {
-            st.attempt(&mut p, k as f64 * h, &y, h, &tol, &mut y1, &mut stats).unwrap();
-            st.accept();
-            y.copy_from_slice(&y1);
-        }
-        let (t, y) = match check {
-            DenseCheck::None => (1.0, y),
-            DenseCheck::Local(theta) => {
-                let mut out = vec![0.0; 2];
-                st.dense(theta, &mut out);
-                (theta * h, out)
-            }
-        };
-        let u = exact_solution(t);
-        (0..2).map(|i| (y[i] - u[i]).abs()).fold(0.0, f64::max)
-    }
-
-    /// A plain adaptive loop (elementary controller `0.9·err^(-1/(q+1))`
-    /// clamped to [0.2, 5]) for the steppers' own tests; the driver has the
-    /// real controller. Returns the end state and the work counts.
-    pub fn adaptive(st: &mut dyn Stepper, p: &mut dyn Problem, y0: &[f64], t_end: f64, tol: &Tolerance, q: u32) -> (Vec<f64>, Stats) {
-        let (mut t, mut h) = (0.0f64, 1e-6f64);
-        let mut y = y0.to_vec();
-        let mut y1 = y.clone();
-        let mut stats = Stats::default();
-        while t < t_end && stats.steps + stats.rejected < 100_000 {
-            h = h.min(t_end - t);
-            match st.attempt(p, t, &y, h, tol, &mut y1, &mut stats) {
-                Ok(a) => {
-                    let err = a.error.unwrap_or(0.0);
-                    let fac = (0.9 * err.max(1e-10).powf(-1.0 / (q as f64 + 1.0))).clamp(0.2, 5.0);
-                    if err <= 1.0 {
-                        st.accept();
-                        t += h;
-                        y.copy_from_slice(&y1);
-                        stats.steps += 1;
-                    } else {
-                        stats.rejected += 1;
-                    }
-                    h *= fac;
-                }
-                Err(_) => {
-                    stats.rejected += 1;
-                    h *= 0.25;
-                }
-            }
-        }
-        (y, stats)
-    }
-
-    /// Least-squares slope of `log err` against `log h`.
-    pub fn fit_order(data: &[(f64, f64)]) -> f64 {
-        let pts: Vec<(f64, f64)> = data.iter().map(|(h, e)| (h.ln(), e.ln())).collect();
-        let k = pts.len() as f64;
-        let (mx, my) = (pts.iter().map(|p| p.0).sum::<f64>() / k, pts.iter().map(|p| p.1).sum::<f64>() / k);
-        let sxy: f64 = pts.iter().map(|p| (p.0 - mx) * (p.1 - my)).sum();
-        let sxx: f64 = pts.iter().map(|p| (p.0 - mx).powi(2)).sum();
-        sxy / sxx
-    }
-}
-
 #[cfg(test)]
 mod tests {
-    use super::testing::*;
     use super::*;
     use crate::problems::FnProblem;
-
-    fn order_of(make: &dyn Fn() -> Box<dyn Stepper>, ms: &[usize], check: fn() -> DenseCheck) -> f64 {
-        let errs: Vec<(f64, f64)> = ms.iter().map(|&m| (1.0 / m as f64, fixed_step_error(make().as_mut(), m, check()))).collect();
-        fit_order(&errs)
-    }
-
-    #[test]
-    fn backward_euler_has_order_1() {
-        // Analytic solution; common practice: global error ~ h^p.
-        let p = order_of(&|| Box::new(ThetaStepper::new(&BACKWARD_EULER, 2)), &[50, 100, 200, 400], || DenseCheck::None);
-        assert!((p - 1.0).abs() < 0.2, "observed order {p}");
-    }
-
-    #[test]
-    fn trapezoid_has_order_2() {
-        let p = order_of(&|| Box::new(ThetaStepper::new(&TRAPEZOID, 2)), &[25, 50, 100, 200], || DenseCheck::None);
-        assert!((p - 2.0).abs() < 0.2, "observed order {p}");
-    }
+    use crate::solve::testing::*;
 
     #[test]
     fn radau5_has_order_5() {
@@ -944,32 +553,6 @@ mod tests {
         assert!((p - 4.0).abs() < 0.25, "observed local order {p}");
     }
 
-    #[test]
-    fn dense_slopes_match_differences_of_the_dense_output() {
-        // The exact slope of each continuous extension against a central
-        // difference of the same polynomial (common practice, no source).
-        let steppers: Vec<Box<dyn Stepper>> = vec![
-            Box::new(Radau::new(2)),
-            Box::new(ThetaStepper::new(&TRAPEZOID, 2)),
-            Box::new(ThetaStepper::new(&BACKWARD_EULER, 2)),
-            Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 2)),
-        ];
-        for mut st in steppers {
-            fixed_step_error(st.as_mut(), 10, DenseCheck::Local(0.5));
-            let h = 0.1;
-            for &theta in &[0.1, 0.5, 0.9] {
-                let (mut lo, mut hi, mut slope) = ([0.0; 2], [0.0; 2], [0.0; 2]);
-                let d = 1e-6;
-                st.dense(theta - d, &mut lo);
-                st.dense(theta + d, &mut hi);
-                st.dense_slope(theta, h, &mut slope);
-                for i in 0..2 {
-                    let fd = (hi[i] - lo[i]) / (2.0 * d * h);
-                    assert!((slope[i] - fd).abs() < 1e-6 * fd.abs().max(1.0), "{} vs {}", slope[i], fd);
-                }
-            }
-        }
-    }
 
     #[test]
     fn radau_tableau_satisfies_b5_and_c3() {
@@ -1060,42 +643,6 @@ mod tests {
         }
     }
 
-    /// y' = -1000(y - cos t) - sin t, y(0) = 1: exact solution y = cos t (analytic).
-    fn stiff_scalar() -> FnProblem<impl FnMut(f64, &[f64], &mut [f64])> {
-        FnProblem::new(&["y"], |t, y: &[f64], dy: &mut [f64]| dy[0] = -1000.0 * (y[0] - t.cos()) - t.sin())
-    }
-
-    #[test]
-    fn backward_euler_is_stable_on_the_stiff_scalar_at_h_0_01() {
-        // Analytic y = cos t; BE's local error here is O(h/1000) per step, so the
-        // global error stays ~1e-5 at h = 0.01 over [0, 10].
-        let mut p = stiff_scalar();
-        let mut st = ThetaStepper::new(&BACKWARD_EULER, 1);
-        let (mut y, mut y1, mut stats) = (vec![1.0], vec![0.0], Stats::default());
-        let tol = Tolerance::default();
-        let h = 0.01;
-        let mut worst: f64 = 0.0;
-        for k in 0..1000 {
-            st.attempt(&mut p, k as f64 * h, &y, h, &tol, &mut y1, &mut stats).unwrap();
-            st.accept();
-            y.copy_from_slice(&y1);
-            worst = worst.max((y[0] - ((k + 1) as f64 * h).cos()).abs());
-        }
-        assert!(worst < 1e-4, "worst error {worst}");
-        // FnProblem has no exact Jacobian: one finite-difference column per step.
-        assert_eq!(stats.jacobians, 1000);
-    }
-
-    #[test]
-    fn singular_iteration_matrix_is_a_fault_not_a_hang() {
-        // y' = y with h = 1 makes I - hJ = 0 for backward Euler.
-        let mut p = FnProblem::new(&["y"], |_t, y: &[f64], dy: &mut [f64]| dy[0] = y[0]);
-        let mut st = ThetaStepper::new(&BACKWARD_EULER, 1);
-        let mut y1 = [0.0];
-        let r = st.attempt(&mut p, 0.0, &[1.0], 1.0, &Tolerance::default(), &mut y1, &mut Stats::default());
-        assert_eq!(r, Err(StepFault::Singular));
-    }
-
     #[test]
     fn newton_failure_is_reported() {
         // y' = -y^9 with a huge step from y = 10: simplified Newton with the
@@ -1109,23 +656,4 @@ mod tests {
         assert!(stats.rhs_evals < 60);
     }
 
-    #[test]
-    fn stiff_references_with_a_plain_loop() {
-        use crate::problems::stiff::*;
-        // References: tests/reference/stiff_reference.py (SciPy Radau, rtol 1e-13 / 1e-12).
-        let tol = Tolerance { relative: 1e-6, absolute: 1e-6 };
-        let mut st: Vec<(Box<dyn Stepper>, u32)> = vec![(Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 2)), 3), (Box::new(Radau::new(2)), 3)];
-        for (s, q) in st.iter_mut() {
-            let (y, stats) = adaptive(s.as_mut(), &mut VanDerPol::new(1000.0), &[2.0, 0.0], 3000.0, &tol, *q);
-            eprintln!("vdp {:?} {:?} err {:e}", y, stats, (y[0] - VAN_DER_POL_1000_AT_3000[0]).abs());
-            assert!((y[0] - VAN_DER_POL_1000_AT_3000[0]).abs() < 1e-2);
-        }
-        let tol = Tolerance { relative: 1e-6, absolute: 1e-10 };
-        let mut st: Vec<(Box<dyn Stepper>, u32)> = vec![(Box::new(crate::solve::rosenbrock::Rosenbrock::new(&crate::solve::rosenbrock::RODAS4, 3)), 3), (Box::new(Radau::new(3)), 3)];
-        for (s, q) in st.iter_mut() {
-            let (y, stats) = adaptive(s.as_mut(), &mut Robertson::default(), &[1.0, 0.0, 0.0], 1e5, &tol, *q);
-            eprintln!("rober {:?} {:?} rel err {:e}", y, stats, ((y[0] - ROBERTSON_AT_1E5[0]) / ROBERTSON_AT_1E5[0]).abs());
-            assert!(((y[0] - ROBERTSON_AT_1E5[0]) / ROBERTSON_AT_1E5[0]).abs() < 1e-3);
-        }
-    }
 }
