@@ -23,7 +23,7 @@ qa = k*(Tw - Ta)
 qab = Uab*(Ta - Tb)
 Ta' = (qa - Ua*(Ta - Tout) - qab)/Ca
 Tb' = (qab - Ub*(Tb - Tout))/Cb
-Tw' = (P*step(20 - Ta) - qa)/Cw
+Tw' = (P*heaviside(20 - Ta) - qa)/Cw
 Ta(0) = 15
 Tb(0) = 14
 Tw(0) = 40
@@ -45,11 +45,11 @@ fn main() {
         }));
     };
     for c in nonstiff::bench_cases() {
-        push(c, &["dp54", "dp853"]);
+        push(c, &["dormand-prince-5", "dormand-prince-8"]);
     }
     for c in stiff::bench_cases() {
         if [1e-4, 1e-6, 1e-8].iter().any(|r| (c.rtol / r - 1.0).abs() < 1e-9) {
-            push(c, &["auto", "radau5"]);
+            push(c, &["auto", "radau-iia-5"]);
         }
     }
     assert_eq!(TWENTY_LINES.lines().count(), 20);

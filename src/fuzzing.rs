@@ -161,7 +161,7 @@ fn settings(h: &[u8; HEADER], model: &Model) -> Settings {
         method: m.id.to_string(),
         to,
         step: (flags & 1 != 0 || !m.adaptive).then(|| number(h[10], h[11])),
-        tol: Tolerance { rtol: number(h[12], h[13]), atol: number(h[14], h[15]) },
+        tol: Tolerance { relative: number(h[12], h[13]), absolute: number(h[14], h[15]) },
         at,
         max_steps: 1 + u64::from(h[2]) % MAX_STEPS,
         max_output: 2 + (h[3] % 64) as usize,

@@ -67,7 +67,7 @@ fn one_op(op: Op, a: u32, b: u32) -> Program {
 
 #[test]
 fn every_operation_emits_a_valid_module_with_exactly_its_imports() {
-    for op in ALL_OPS.into_iter().chain([Op::Step]) {
+    for op in ALL_OPS.into_iter().chain([Op::Heaviside]) {
         // Operands: t with a state, a live parameter with a constant.
         for (a, b) in [(0, 2), (3, 4)] {
             let p = one_op(op, a, b);
@@ -89,8 +89,8 @@ fn every_operation_emits_a_valid_module_with_exactly_its_imports() {
 #[test]
 fn the_maths_list_covers_every_operation_that_wasm_lacks() {
     use Op::*;
-    let native = [Add, Sub, Mul, Div, AddC, MulC, CSub, DivC, CDiv, Neg, Sq, Sqrt, Abs, Floor, Ceil, Trunc, Sign, Step];
-    for op in ALL_OPS.into_iter().chain([Step]) {
+    let native = [Add, Sub, Mul, Div, AddC, MulC, CSub, DivC, CDiv, Neg, Sq, Sqrt, Abs, Floor, Ceil, Trunc, Sign, Heaviside];
+    for op in ALL_OPS.into_iter().chain([Heaviside]) {
         let listed = MATHS.iter().any(|m| m.1 == op) || matches!(op, PowC | CPow);
         assert_eq!(listed, !native.contains(&op), "{op:?}");
     }
@@ -205,7 +205,7 @@ fn too_many_live_values_are_refused_not_emitted_broken() {
 #[test]
 fn the_rk4_stepper_module_is_valid_for_every_operation() {
     use ratebook::emit::lower::rk4_module;
-    for op in ALL_OPS.into_iter().chain([Op::Step]) {
+    for op in ALL_OPS.into_iter().chain([Op::Heaviside]) {
         let bytes = rk4_module(&one_op(op, 3, 1)).expect("emits");
         validate(&bytes);
     }

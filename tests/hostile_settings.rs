@@ -3,7 +3,7 @@
 //! output and event caps. The checks are on result sizes and work counters,
 //! never on wall time.
 
-use ratebook::api::{self, ApiError, RunReport, RunRequest};
+use ratebook::api::{self, ApiError, RunReport, RunRequest, ToleranceRequest};
 
 const DECAY: &str = "k = 0.3\ndy/dt = -k*y\ny(0) = 2\n";
 const SWING: &str = "w = 2\nx'' = -w^2*x\nx(0) = 1\nx'(0) = 0\nmark when x > 0\n";
@@ -24,7 +24,7 @@ fn bounded(r: &RunReport) {
     for (_, col) in &r.values.0 {
         assert_eq!(col.len(), r.t.len());
     }
-    // Each step costs a bounded number of evaluations (dp853 with extrema
+    // Each step costs a bounded number of evaluations (dormand-prince-8 with extrema
     // and events is the dearest, well under 40 per attempt).
     assert!(r.stats.rhs_evals <= 40 * (r.stats.steps + r.stats.rejected) + 100, "{:?}", r.stats);
 }
@@ -61,10 +61,10 @@ fn tiny_fixed_step_below_the_resolution_of_t_fails_at_once() {
 
 #[test]
 fn tiny_first_step_and_tiny_largest_step() {
-    let r = api::solve(DECAY, &RunRequest { first_step: Some(1e-300), ..req(5.0) }).unwrap();
+    let r = api::solve(DECAY, &RunRequest { start_step: Some(1e-300), ..req(5.0) }).unwrap();
     bounded(&r);
     assert_eq!(r.status, "finished");
-    let r = api::solve(DECAY, &RunRequest { max_step: Some(1e-300), max_steps: Some(5000.0), ..req(5.0) }).unwrap();
+    let r = api::solve(DECAY, &RunRequest { largest_step: Some(1e-300), step_limit: Some(5000.0), ..req(5.0) }).unwrap();
     bounded(&r);
     assert_eq!(r.status, "failed");
     assert!(r.stats.steps <= 5000);
@@ -95,15 +95,15 @@ fn enormous_end_time_ends_within_the_caps() {
 
 #[test]
 fn zero_relative_tolerance() {
-    let r = api::solve(DECAY, &RunRequest { rtol: Some(0.0), atol: Some(1e-9), ..req(10.0) }).unwrap();
+    let r = api::solve(DECAY, &RunRequest { tolerance: ToleranceRequest { relative: Some(0.0), absolute: Some(1e-9) }, ..req(10.0) }).unwrap();
     bounded(&r);
     assert_eq!(r.status, "finished");
     // y(10) = 2·exp(-3), analytic.
     let y = r.values.0[0].1.last().copied().unwrap();
     assert!((y - 2.0 * (-3.0f64).exp()).abs() < 1e-7, "{y}");
-    let r = api::solve(DECAY, &RunRequest { rtol: Some(0.0), atol: Some(1e-300), ..req(10.0) }).unwrap();
+    let r = api::solve(DECAY, &RunRequest { tolerance: ToleranceRequest { relative: Some(0.0), absolute: Some(1e-300) }, ..req(10.0) }).unwrap();
     bounded(&r);
-    assert!(error_of(DECAY, &RunRequest { rtol: Some(0.0), atol: Some(0.0), ..req(10.0) }).contains("both be zero"));
+    assert!(error_of(DECAY, &RunRequest { tolerance: ToleranceRequest { relative: Some(0.0), absolute: Some(0.0) }, ..req(10.0) }).contains("both be zero"));
 }
 
 #[test]
@@ -113,16 +113,16 @@ fn ten_million_output_times_are_refused_before_any_work() {
     let msg = error_of(DECAY, &RunRequest { at: Some(at.clone()), ..req(1.0) });
     assert!(msg.contains("10000000 output times"), "{msg}");
     // Raising the output cap does not lift the ceiling on stored values.
-    let msg = error_of(DECAY, &RunRequest { at: Some(at), max_output: Some(1e300), ..req(1.0) });
+    let msg = error_of(DECAY, &RunRequest { at: Some(at), output_limit: Some(1e300), ..req(1.0) });
     assert!(msg.contains("output"), "{msg}");
 }
 
 #[test]
 fn enormous_caps_are_refused() {
     for (field, r) in [
-        ("max_steps", RunRequest { max_steps: Some(1e300), ..req(1.0) }),
-        ("max_output", RunRequest { max_output: Some(1e300), ..req(1.0) }),
-        ("max_events", RunRequest { max_events: Some(1e300), ..req(1.0) }),
+        ("stepLimit", RunRequest { step_limit: Some(1e300), ..req(1.0) }),
+        ("outputLimit", RunRequest { output_limit: Some(1e300), ..req(1.0) }),
+        ("eventLimit", RunRequest { event_limit: Some(1e300), ..req(1.0) }),
     ] {
         let msg = error_of(SWING, &r);
         assert!(msg.contains(field), "{field}: {msg}");
@@ -136,12 +136,12 @@ fn nan_infinite_and_negative_settings_are_refused() {
         let cases: Vec<(&str, RunRequest)> = vec![
             ("to", RunRequest { to: Some(if v < 0.0 && v.is_finite() { f64::NAN } else { v }), ..Default::default() }),
             ("step", RunRequest { method: Some("rk4".into()), step: Some(v), ..req(1.0) }),
-            ("rtol", RunRequest { rtol: Some(v), ..req(1.0) }),
-            ("atol", RunRequest { atol: Some(v), ..req(1.0) }),
-            ("first_step", RunRequest { first_step: Some(v), ..req(1.0) }),
-            ("max_step", RunRequest { max_step: Some(v), ..req(1.0) }),
-            ("max_steps", RunRequest { max_steps: Some(v), ..req(1.0) }),
-            ("max_output", RunRequest { max_output: Some(v), ..req(1.0) }),
+            ("tolerance.relative", RunRequest { tolerance: ToleranceRequest { relative: Some(v), absolute: None }, ..req(1.0) }),
+            ("tolerance.absolute", RunRequest { tolerance: ToleranceRequest { relative: None, absolute: Some(v) }, ..req(1.0) }),
+            ("startStep", RunRequest { start_step: Some(v), ..req(1.0) }),
+            ("largestStep", RunRequest { largest_step: Some(v), ..req(1.0) }),
+            ("stepLimit", RunRequest { step_limit: Some(v), ..req(1.0) }),
+            ("outputLimit", RunRequest { output_limit: Some(v), ..req(1.0) }),
             ("at", RunRequest { at: Some(vec![0.0, v, 1.0]), ..req(1.0) }),
         ];
         for (what, r) in cases {
@@ -150,8 +150,8 @@ fn nan_infinite_and_negative_settings_are_refused() {
         }
     }
     for v in bad {
-        let msg = error_of(SWING, &RunRequest { max_events: Some(v), ..req(10.0) });
-        assert!(msg.contains("max_events"), "{msg}");
+        let msg = error_of(SWING, &RunRequest { event_limit: Some(v), ..req(10.0) });
+        assert!(msg.contains("eventLimit"), "{msg}");
     }
 }
 
@@ -194,9 +194,9 @@ fn chain(n: usize) -> String {
 #[test]
 fn two_hundred_states() {
     let sheet = chain(200);
-    for method in ["auto", "dp54", "rk4", "dp853"] {
+    for method in ["auto", "dormand-prince-5", "rk4", "dormand-prince-8"] {
         let step = (method == "rk4").then_some(0.01);
-        let r = api::solve(&sheet, &RunRequest { method: Some(method.into()), step, max_steps: Some(20_000.0), ..req(10.0) }).unwrap();
+        let r = api::solve(&sheet, &RunRequest { method: Some(method.into()), step, step_limit: Some(20_000.0), ..req(10.0) }).unwrap();
         bounded(&r);
         assert_eq!(r.states.len(), 200);
         assert_eq!(r.status, "finished", "{method}: {:?}", r.error);
@@ -215,7 +215,7 @@ fn two_hundred_stiff_states_with_implicit_methods() {
     let sheet = chain(200).replace("k = 2", "k = 2e4");
     for m in ratebook::solve::methods().iter().filter(|m| m.implicit) {
         let step = (!m.adaptive).then_some(0.001);
-        let r = api::solve(&sheet, &RunRequest { method: Some(m.id.into()), step, max_steps: Some(200.0), ..req(0.05) }).unwrap();
+        let r = api::solve(&sheet, &RunRequest { method: Some(m.id.into()), step, step_limit: Some(200.0), ..req(0.05) }).unwrap();
         bounded(&r);
         assert!(r.stats.steps <= 200);
         assert!(r.stats.factorizations <= 10 * (r.stats.steps + r.stats.rejected) + 10, "{:?}", r.stats);
@@ -225,7 +225,7 @@ fn two_hundred_stiff_states_with_implicit_methods() {
 
 #[test]
 fn output_is_decimated_with_a_note_not_exhausted() {
-    let r = api::solve(SWING, &RunRequest { method: Some("euler".into()), step: Some(1e-4), max_output: Some(1000.0), ..req(100.0) }).unwrap();
+    let r = api::solve(SWING, &RunRequest { method: Some("euler".into()), step: Some(1e-4), output_limit: Some(1000.0), ..req(100.0) }).unwrap();
     bounded(&r);
     assert!(r.t.len() <= 1000, "{}", r.t.len());
     assert_eq!(r.t.last().copied(), Some(100.0));
@@ -234,7 +234,7 @@ fn output_is_decimated_with_a_note_not_exhausted() {
 
 #[test]
 fn events_are_capped_with_a_warning() {
-    let r = api::solve(SWING, &RunRequest { max_events: Some(3.0), ..req(1000.0) }).unwrap();
+    let r = api::solve(SWING, &RunRequest { event_limit: Some(3.0), ..req(1000.0) }).unwrap();
     bounded(&r);
     assert_eq!(r.events.len(), 3);
     assert!(r.diagnostics.iter().any(|d| d.code == "max-events"));

@@ -27,6 +27,9 @@ const CORPUS: &[(&str, usize, usize, &str)] = &[
     ("dx/dt = -sqr(x)\nx(0) = 1", 1, 10, "unknown function \"sqr\"; did you mean \"sqrt\"?"),
     ("dx/dt = -x*expp(1)\nx(0) = 1", 1, 12, "did you mean \"exp\""),
     ("dx/dt = f(x)\nx(0) = 1", 1, 9, "unknown function \"f\""),
+    // a function under its former name: the error gives today's, no alias
+    ("P = 2\nheat = P*step(5 - t)\ndT/dt = heat - T\nT(0) = 1", 2, 10, "the function \"step\" is now called \"heaviside\", with the same meaning: write heaviside(…) here"),
+    ("dx/dt = -x + step (t - 1)\nx(0) = 1", 1, 14, "now called \"heaviside\""),
     // missing or doubled initial values
     ("dx/dt = -x\n", 1, 1, "\"x\" has no initial value"),
     ("x'' = -x\nx(0) = 1\n", 1, 1, "\"x'\" has no initial value"),

@@ -195,9 +195,9 @@ fn our_added_functions() {
     assert_eq!(value("clamp(x, 0, 1)", x, 0.0), x);
     assert_eq!(value("clamp(x, 0.5, 1)", x, 0.0), 0.5);
     assert_eq!(value("clamp(x, 0, 0.1)", x, 0.0), 0.1);
-    assert_eq!(value("step(x)", -1.0, 0.0), 0.0);
-    assert_eq!(value("step(x)", 0.0, 0.0), 1.0);
-    assert_eq!(value("step(x)", 2.0, 0.0), 1.0);
+    assert_eq!(value("heaviside(x)", -1.0, 0.0), 0.0);
+    assert_eq!(value("heaviside(x)", 0.0, 0.0), 1.0);
+    assert_eq!(value("heaviside(x)", 2.0, 0.0), 1.0);
     assert_eq!(value("sign(x)", -3.0, 0.0), -1.0);
     assert_eq!(value("sign(x)", 0.0, 0.0), 0.0);
     assert_eq!(value("sign(x)", 3.0, 0.0), 1.0);
@@ -206,7 +206,7 @@ fn our_added_functions() {
 #[test]
 fn switch_functions_of_the_rates() {
     let mut m = model(
-        "k = 2\nflow = k*step(x - 1)\ndx/dt = -flow + abs(x) + min(x, t) + clamp(x, 0, 5) + floor(t) + sign(x)\nx(0) = 1",
+        "k = 2\nflow = k*heaviside(x - 1)\ndx/dt = -flow + abs(x) + min(x, t) + clamp(x, 0, 5) + floor(t) + sign(x)\nx(0) = 1",
     );
     // step, abs, min, clamp (two), floor, sign.
     // step, abs, min, clamp (two), floor, sign; abs(x), sign(x) and x - 0

@@ -71,7 +71,7 @@ fn second_order_sheet_gives_the_same_trajectory() {
 fn undamped_spring_follows_the_cosine() {
     // x'' = -w^2 x, x(0) = 1, x'(0) = 0 has x = cos(w t) (analytic).
     let mut m = compile("w = 2\nx'' = -w^2*x\nx(0) = 1\nx'(0) = 0").unwrap();
-    let settings = Settings { to: 5.0, tol: ratebook::solve::Tolerance { rtol: 1e-10, atol: 1e-12 }, ..Settings::default() };
+    let settings = Settings { to: 5.0, tol: ratebook::solve::Tolerance { relative: 1e-10, absolute: 1e-12 }, ..Settings::default() };
     let y0 = m.initial_state().to_vec();
     let run = solve(&mut m, 0.0, &y0, &settings).unwrap();
     for (k, &t) in run.t.iter().enumerate() {

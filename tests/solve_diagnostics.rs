@@ -9,7 +9,7 @@ use ratebook::solve::{solve, Settings, SolveError, Status, Tolerance};
 #[test]
 fn quadratic_growth_blows_up_near_t_equals_one() {
     // Analytic: y' = y², y(0) = 1 has y = 1/(1 − t), which blows up at t = 1.
-    for m in ["dp54", "bs32", "dp853"] {
+    for m in ["dormand-prince-5", "bogacki-shampine-3", "dormand-prince-8"] {
         let mut p = FnProblem::new(&["y"], |_t, y: &[f64], dy: &mut [f64]| dy[0] = y[0] * y[0]);
         let r = solve(&mut p, 0.0, &[1.0], &Settings { method: m.into(), to: 2.0, ..Settings::default() }).unwrap();
         match &r.status {
@@ -93,7 +93,8 @@ fn dp54_detects_stiffness_and_points_to_the_stiff_methods() {
     let r = solve(&mut *p, 0.0, &[1.0], &Settings { to: 10.0, ..Settings::default() }).unwrap();
     assert_eq!(r.status, Status::Finished);
     let d = r.diagnostics.iter().find(|d| d.code == "stiff").expect("stiffness warning");
-    assert!(d.message.contains("stiff method"), "{}", d.message);
+    assert!(d.message.contains("sized by its stability limit, not by the tolerance"), "{}", d.message);
+    assert!(d.message.contains("Choose an implicit method"), "{}", d.message);
     // A non-stiff problem gives no such warning.
     let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
     let r = solve(&mut p, 0.0, &ARENSTORF_Y0, &Settings { to: ARENSTORF_PERIOD, ..Settings::default() }).unwrap();
@@ -112,7 +113,7 @@ fn the_step_limit_keeps_the_partial_result() {
 #[test]
 fn long_runs_are_decimated_with_a_note() {
     let mut p = FnProblem::new(&["x", "v"], oscillator_rhs);
-    let s = Settings { to: 40.0, max_output: 16, tol: Tolerance { rtol: 1e-10, atol: 1e-10 }, ..Settings::default() };
+    let s = Settings { to: 40.0, max_output: 16, tol: Tolerance { relative: 1e-10, absolute: 1e-10 }, ..Settings::default() };
     let r = solve(&mut p, 0.0, &[1.0, 0.0], &s).unwrap();
     assert!(r.t.len() <= 16 && r.t.len() >= 8, "{}", r.t.len());
     assert_eq!(r.t[0], 0.0);
@@ -136,15 +137,15 @@ fn invalid_settings_are_errors_naming_the_field() {
     assert_eq!(field(Settings { method: "nope".into(), ..d() }, &[1.0]), "method");
     assert_eq!(field(Settings { method: "rk4".into(), ..d() }, &[1.0]), "step");
     assert_eq!(field(Settings { step: Some(-1.0), ..d() }, &[1.0]), "step");
-    assert_eq!(field(Settings { tol: Tolerance { rtol: -1.0, atol: 1e-9 }, ..d() }, &[1.0]), "tol.rtol");
-    assert_eq!(field(Settings { tol: Tolerance { rtol: 0.0, atol: 0.0 }, ..d() }, &[1.0]), "tol");
+    assert_eq!(field(Settings { tol: Tolerance { relative: -1.0, absolute: 1e-9 }, ..d() }, &[1.0]), "tolerance.relative");
+    assert_eq!(field(Settings { tol: Tolerance { relative: 0.0, absolute: 0.0 }, ..d() }, &[1.0]), "tolerance");
     assert_eq!(field(Settings { to: f64::NAN, ..d() }, &[1.0]), "to");
     assert_eq!(field(Settings { at: Some(vec![0.5, 2.0]), ..d() }, &[1.0]), "at");
     assert_eq!(field(Settings { at: Some(vec![0.5, 0.2]), ..d() }, &[1.0]), "at");
     assert_eq!(field(d(), &[1.0, 2.0]), "y0");
     assert_eq!(field(d(), &[f64::NAN]), "y0");
-    assert_eq!(field(Settings { max_steps: 0, ..d() }, &[1.0]), "max_steps");
-    assert_eq!(field(Settings { max_step: Some(0.0), ..d() }, &[1.0]), "max_step");
+    assert_eq!(field(Settings { max_steps: 0, ..d() }, &[1.0]), "stepLimit");
+    assert_eq!(field(Settings { max_step: Some(0.0), ..d() }, &[1.0]), "largestStep");
     let e = SolveError::InvalidSettings { field: "step", reason: "x".into() };
     assert_eq!(e.to_string(), "invalid setting `step`: x");
 }
@@ -161,11 +162,11 @@ fn odd_problems_and_settings_never_panic_and_stay_bounded() {
         |t, _y, dy| dy[0] = (1e6 * t).sin(),
     ];
     for f in rates {
-        for m in ["euler", "heun", "midpoint", "rk4", "bs32", "dp54", "dp853", "auto"] {
+        for m in ["euler", "heun", "midpoint", "rk4", "bogacki-shampine-3", "dormand-prince-5", "dormand-prince-8", "auto"] {
             for (t0, to) in [(0.0, 1.0), (0.0, -1.0), (1.0, 1.0), (0.0, 1e300)] {
                 let mut p = FnProblem::new(&["y"], f).with_switches(1, |_t, y, s| s[0] = y[0]);
                 let s = Settings { method: m.into(), to, step: Some(0.1), max_steps: 5000, ..Settings::default() };
-                let s = if m == "dp54" || m == "dp853" || m == "bs32" || m == "auto" { Settings { step: None, ..s } } else { s };
+                let s = if m == "dormand-prince-5" || m == "dormand-prince-8" || m == "bogacki-shampine-3" || m == "auto" { Settings { step: None, ..s } } else { s };
                 let r = solve(&mut p, t0, &[0.0], &s).unwrap();
                 assert!(r.stats.steps <= 5000);
                 assert!(r.stats.rhs_evals < 5000 * 40, "{m}: {:?}", r.stats);
@@ -183,4 +184,20 @@ fn a_zero_length_run_returns_the_start() {
     let mut p = FnProblem::new(&["y"], logistic_rhs);
     let r = solve(&mut p, 2.0, &[0.5], &Settings { to: 2.0, ..Settings::default() }).unwrap();
     assert_eq!((r.t.clone(), r.states[0].clone(), r.status), (vec![2.0], vec![0.5], Status::Finished));
+}
+
+#[test]
+fn a_relative_tolerance_below_the_floor_runs_at_the_floor_with_a_note() {
+    // Exponential decay y' = -y (analytic e^-t); the floor 1e-14 is common practice, no source.
+    let run = |relative: f64| {
+        let mut p = FnProblem::new(&["y"], |_t, y: &[f64], dy: &mut [f64]| dy[0] = -y[0]);
+        solve(&mut p, 0.0, &[1.0], &Settings { to: 1.0, tol: Tolerance { relative, absolute: 1e-20 }, ..Settings::default() }).unwrap()
+    };
+    let low = run(1e-16);
+    let d = low.diagnostics.iter().find(|d| d.code == "tolerance-floor").expect("a note on the floor");
+    assert!(d.message.starts_with("the relative tolerance 1e-16 asks for more digits than double precision holds"), "{}", d.message);
+    assert!(d.message.contains("The run used 1e-14"), "{}", d.message);
+    let floor = run(1e-14);
+    assert!(floor.diagnostics.iter().all(|d| d.code != "tolerance-floor"));
+    assert_eq!((low.t, low.states, low.stats), (floor.t, floor.states, floor.stats));
 }

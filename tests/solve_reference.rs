@@ -16,13 +16,13 @@ fn last(r: &Run, i: usize) -> f64 {
 }
 
 fn settings(method: &str, to: f64, rtol: f64, atol: f64) -> Settings {
-    Settings { method: method.into(), to, tol: Tolerance { rtol, atol }, ..Settings::default() }
+    Settings { method: method.into(), to, tol: Tolerance { relative: rtol, absolute: atol }, ..Settings::default() }
 }
 
 #[test]
 fn logistic_growth_matches_analytic_solution() {
     // Analytic: y = K / (1 + (K/y0 − 1) e^(−rt)).
-    for (m, tol, bound) in [("bs32", 1e-6, 1e-4), ("dp54", 1e-8, 1e-6), ("dp853", 1e-10, 1e-8), ("auto", 1e-6, 1e-4)] {
+    for (m, tol, bound) in [("bogacki-shampine-3", 1e-6, 1e-4), ("dormand-prince-5", 1e-8, 1e-6), ("dormand-prince-8", 1e-10, 1e-8), ("auto", 1e-6, 1e-4)] {
         let mut p = FnProblem::new(&["y"], logistic_rhs);
         let r = run(&mut p, 0.0, &[0.5], settings(m, 10.0, tol, tol));
         let e = (last(&r, 0) - logistic_exact(10.0)).abs();
@@ -39,7 +39,7 @@ fn cooling_toward_sinusoidal_ambient_matches_analytic() {
     // Analytic: integrating factor (see cooling_exact).
     let mut p = FnProblem::new(&["T"], cooling_rhs);
     let at: Vec<f64> = (0..=20).map(|k| 0.5 * k as f64).collect();
-    let r = run(&mut p, 0.0, &[90.0], Settings { at: Some(at.clone()), ..settings("dp54", 10.0, 1e-8, 1e-8) });
+    let r = run(&mut p, 0.0, &[90.0], Settings { at: Some(at.clone()), ..settings("dormand-prince-5", 10.0, 1e-8, 1e-8) });
     assert_eq!(r.t, at);
     for (k, t) in at.iter().enumerate() {
         let e = (r.states[0][k] - cooling_exact(*t)).abs();
@@ -51,7 +51,7 @@ fn cooling_toward_sinusoidal_ambient_matches_analytic() {
 fn damped_driven_oscillator_matches_analytic() {
     // Analytic: steady response plus the damped homogeneous solution.
     let mut p = FnProblem::new(&["x", "v"], oscillator_rhs);
-    let r = run(&mut p, 0.0, &[1.0, 0.0], settings("dp853", 40.0, 1e-11, 1e-11));
+    let r = run(&mut p, 0.0, &[1.0, 0.0], settings("dormand-prince-8", 40.0, 1e-11, 1e-11));
     let ex = oscillator_exact(40.0);
     assert!((last(&r, 0) - ex[0]).abs() < 1e-9 && (last(&r, 1) - ex[1]).abs() < 1e-9, "{} {} vs {ex:?}", last(&r, 0), last(&r, 1));
 }
@@ -60,7 +60,7 @@ fn damped_driven_oscillator_matches_analytic() {
 fn arenstorf_orbit_returns_after_its_period() {
     // Published: the orbit is periodic with period 17.0652165601579625588917206249
     // (Hairer, Nørsett & Wanner, Solving ODEs I, Sec. II.0; from memory).
-    for (m, tol, bound) in [("dp54", 1e-10, 1e-5), ("dp853", 1e-12, 1e-7)] {
+    for (m, tol, bound) in [("dormand-prince-5", 1e-10, 1e-5), ("dormand-prince-8", 1e-12, 1e-7)] {
         let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
         let r = run(&mut p, 0.0, &ARENSTORF_Y0, settings(m, ARENSTORF_PERIOD, tol, tol));
         for i in 0..4 {
@@ -74,7 +74,7 @@ fn arenstorf_orbit_returns_after_its_period() {
 fn backward_run_retraces_the_analytic_solution() {
     // Analytic (logistic): integrate from t = 10 back to 0.
     let mut p = FnProblem::new(&["y"], logistic_rhs);
-    let r = run(&mut p, 10.0, &[logistic_exact(10.0)], settings("dp54", 0.0, 1e-9, 1e-12));
+    let r = run(&mut p, 10.0, &[logistic_exact(10.0)], settings("dormand-prince-5", 0.0, 1e-9, 1e-12));
     assert_eq!(*r.t.last().unwrap(), 0.0);
     assert!(r.t.windows(2).all(|w| w[1] < w[0]));
     assert!((last(&r, 0) - 0.5).abs() < 1e-7, "{}", last(&r, 0));
@@ -95,7 +95,7 @@ fn fixed_step_lands_exactly_on_the_end() {
 fn lorenz_to_t5_matches_the_mpmath_reference() {
     // Reference: tests/reference/nonstiff.py (mpmath odefun, 40 digits), output in nonstiff.json.
     let want: Vec<f64> = reference(&["lorenz", "at", "5"]).unwrap().as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
-    for (m, tol, bound) in [("dp54", 1e-10, 1e-5), ("dp853", 1e-13, 1e-8)] {
+    for (m, tol, bound) in [("dormand-prince-5", 1e-10, 1e-5), ("dormand-prince-8", 1e-13, 1e-8)] {
         let mut p = FnProblem::new(&["x", "y", "z"], lorenz_rhs);
         let r = run(&mut p, 0.0, &[1.0, 1.0, 1.0], settings(m, 5.0, tol, tol));
         for i in 0..3 {
@@ -111,7 +111,7 @@ fn every_shared_problem_with_a_reference_is_met_by_dp853() {
         let Some(want) = tp.reference.clone() else { continue };
         assert!(!tp.source.is_empty());
         let mut p = (tp.make)();
-        let r = run(&mut *p, tp.t0, &tp.y0, settings("dp853", tp.t_end, 1e-13, 1e-13));
+        let r = run(&mut *p, tp.t0, &tp.y0, settings("dormand-prince-8", tp.t_end, 1e-13, 1e-13));
         for (i, w) in want.iter().enumerate() {
             // Lorenz to t = 20 amplifies errors by about e^(0.9·20) (chaos), hence its looser bound.
             let bound = if tp.name == "lorenz" { 1e-4 } else { 1e-8 * (1.0 + w.abs()) };

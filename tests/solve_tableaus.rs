@@ -167,7 +167,7 @@ fn registry_entries_are_documented_and_unique() {
         assert!(ms[..i].iter().all(|o| o.id != m.id), "duplicate id {}", m.id);
         assert_eq!(m.adaptive, m.embedded_order.is_some(), "{}", m.id);
     }
-    for id in ["euler", "heun", "midpoint", "rk4", "bs32", "dp54", "dp853", "auto"] {
+    for id in ["euler", "heun", "midpoint", "rk4", "bogacki-shampine-3", "dormand-prince-5", "dormand-prince-8", "auto"] {
         assert!(ratebook::solve::method(id).is_some(), "{id}");
     }
 }

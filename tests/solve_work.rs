@@ -6,7 +6,7 @@
 //! Last moved when the explicit pairs' PI controller took Gustafsson's
 //! predictive cap and the plain controller's first step, and the first step
 //! reused f(t0, y0) from the initial-step estimate: far fewer rejected steps
-//! (Arenstorf with dp54 at 1e-6: 25 to 4; Lorenz with dp853 at 1e-9: 124 to
+//! (Arenstorf with dormand-prince-5 at 1e-6: 25 to 4; Lorenz with dormand-prince-8 at 1e-9: 124 to
 //! 60) and fewer evaluations at equal error on the bench.
 
 use ratebook::problems::nonstiff::*;
@@ -18,28 +18,28 @@ fn stats(rhs_evals: u64, steps: u64, rejected: u64) -> Stats {
 }
 
 fn counted(method: &str, tol: f64, to: f64, problem: &mut dyn ratebook::problem::Problem, y0: &[f64]) -> Stats {
-    let s = Settings { method: method.into(), to, tol: Tolerance { rtol: tol, atol: tol }, extrema: false, ..Settings::default() };
+    let s = Settings { method: method.into(), to, tol: Tolerance { relative: tol, absolute: tol }, extrema: false, ..Settings::default() };
     solve(problem, 0.0, y0, &s).unwrap().stats
 }
 
 #[test]
 fn arenstorf_work_counts() {
     let mut p = FnProblem::new(&["x", "y", "vx", "vy"], arenstorf_rhs);
-    assert_eq!(counted("dp54", 1e-6, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(872, 141, 4));
-    assert_eq!(counted("dp853", 1e-9, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(1886, 138, 19));
-    assert_eq!(counted("bs32", 1e-4, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(560, 181, 5));
+    assert_eq!(counted("dormand-prince-5", 1e-6, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(872, 141, 4));
+    assert_eq!(counted("dormand-prince-8", 1e-9, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(1886, 138, 19));
+    assert_eq!(counted("bogacki-shampine-3", 1e-4, ARENSTORF_PERIOD, &mut p, &ARENSTORF_Y0), stats(560, 181, 5));
 }
 
 #[test]
 fn lorenz_work_counts() {
     let mut p = FnProblem::new(&["x", "y", "z"], lorenz_rhs);
-    assert_eq!(counted("dp54", 1e-6, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(4766, 780, 14));
-    assert_eq!(counted("dp853", 1e-9, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(8054, 611, 60));
+    assert_eq!(counted("dormand-prince-5", 1e-6, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(4766, 780, 14));
+    assert_eq!(counted("dormand-prince-8", 1e-9, 20.0, &mut p, &[1.0, 1.0, 1.0]), stats(8054, 611, 60));
 }
 
 #[test]
 fn tank_event_run_work_counts() {
-    // Default settings, stop event, helper and extrema: dense output costs no evaluations for dp54.
+    // Default settings, stop event, helper and extrema: dense output costs no evaluations for dormand-prince-5.
     let mut p = tank_problem();
     let r = solve(&mut p, 0.0, &[4.0], &Settings { to: 100.0, ..Settings::default() }).unwrap();
     assert_eq!(r.stats, stats(56, 9, 0));

@@ -18,7 +18,7 @@ fn work(s: &Stats) -> u64 {
 }
 
 fn settings(method: &str, to: f64, rtol: f64, atol: f64) -> Settings {
-    Settings { method: method.into(), to, tol: Tolerance { rtol, atol }, ..Settings::default() }
+    Settings { method: method.into(), to, tol: Tolerance { relative: rtol, absolute: atol }, ..Settings::default() }
 }
 
 fn switches(run: &Run) -> Vec<f64> {
@@ -48,10 +48,10 @@ fn within_budget_where_explicit_is_not(make: fn() -> Box<dyn Problem>, y0: &[f64
     assert!(!auto.diagnostics.iter().any(|d| d.code == "stiff"), "{:?}", auto.diagnostics);
     // Dormand–Prince uses 6 evaluations per step (FSAL), so budget/6 steps is
     // the whole budget.
-    let explicit = Settings { method: "dp54".into(), max_steps: budget / 6, ..s.clone() };
+    let explicit = Settings { method: "dormand-prince-5".into(), max_steps: budget / 6, ..s.clone() };
     let dp = solve(make().as_mut(), 0.0, y0, &explicit).unwrap();
-    let Status::Failed(SolveError::MaxSteps { t, .. }) = dp.status else { panic!("dp54 should run out of steps: {:?}", dp.status) };
-    assert!(t < 0.5 * s.to, "dp54 got to t = {t} of {}", s.to);
+    let Status::Failed(SolveError::MaxSteps { t, .. }) = dp.status else { panic!("dormand-prince-5 should run out of steps: {:?}", dp.status) };
+    assert!(t < 0.5 * s.to, "dormand-prince-5 got to t = {t} of {}", s.to);
     assert!(work(&dp.stats) >= budget - 10);
     auto
 }
@@ -133,7 +133,7 @@ fn events_at_output_and_extrema_are_kept_across_switches() {
     let at = vec![1000.0, 2000.0, 3000.0];
     let s = |m: &str| Settings { at: Some(at.clone()), ..settings(m, 3000.0, 1e-8, 1e-8) };
     let auto = solve(&mut marked_van_der_pol(), 0.0, &[2.0, 0.0], &s("auto")).unwrap();
-    let radau = solve(&mut marked_van_der_pol(), 0.0, &[2.0, 0.0], &s("radau5")).unwrap();
+    let radau = solve(&mut marked_van_der_pol(), 0.0, &[2.0, 0.0], &s("radau-iia-5")).unwrap();
     assert_eq!(auto.status, Status::Finished);
     assert!(switches(&auto).len() >= 2, "auto should switch in and out: {:?}", switches(&auto));
     // `at` output: exactly the requested times, values against the SciPy reference.
@@ -143,7 +143,7 @@ fn events_at_output_and_extrema_are_kept_across_switches() {
     }
     // Events: y1 crosses zero once per relaxation jump, three times on
     // [0, 3000] (period ≈ (3 - 2 ln 2)μ ≈ 1614; common practice, no source);
-    // auto and radau5 alone locate the same times.
+    // auto and radau-iia-5 alone locate the same times.
     assert_eq!(auto.events.len(), 3, "{:?}", auto.events);
     assert_eq!(radau.events.len(), 3);
     for (a, b) in auto.events.iter().zip(&radau.events) {

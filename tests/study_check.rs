@@ -56,7 +56,7 @@ fn adaptive_estimates_bracket_the_true_error() {
         for id in &ids {
             for k in 3..=10 {
                 let rtol = 10f64.powi(-k);
-                let s = Settings { method: id.to_string(), tol: Tolerance { rtol, atol: rtol * 1e-3 }, ..Settings::default() };
+                let s = Settings { method: id.to_string(), tol: Tolerance { relative: rtol, absolute: rtol * 1e-3 }, ..Settings::default() };
                 let v = ratios(name, &s);
                 n += v.len();
                 assert_brackets(&format!("{name} {id} rtol {rtol:.0e}"), &v, &mut bad);
@@ -94,7 +94,7 @@ fn fixed_step_estimates_bracket_the_true_error() {
 fn cross_check_says_plainly_when_methods_do_not_agree() {
     let mut m = ratebook::sheet::compile("x'' = -x\nx(0) = 1\nx'(0) = 0\n").unwrap();
     let (t0, y0) = (m.t0(), m.initial_state().to_vec());
-    let s = Settings { to: 60.0, tol: Tolerance { rtol: 1e-2, atol: 1e-4 }, ..Settings::default() };
+    let s = Settings { to: 60.0, tol: Tolerance { relative: 1e-2, absolute: 1e-4 }, ..Settings::default() };
     let r = check(&mut m, t0, &y0, &s, "t", &Options { shown_digits: 4, cross_method: true }).unwrap();
     let c = r.cross.expect("the cross-check ran");
     assert_eq!(c.least, Some(0), "{}", c.sentence);

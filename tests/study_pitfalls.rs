@@ -2,10 +2,10 @@
 //! control sheet.
 
 use ratebook::api::study::{check_accuracy, AccuracyReport, StudyRequest};
-use ratebook::api::RunRequest;
+use ratebook::api::{RunRequest, ToleranceRequest};
 
 fn check(sheet: &str, to: f64, method: &str, step: Option<f64>, rtol: Option<f64>) -> AccuracyReport {
-    let run = RunRequest { to: Some(to), method: Some(method.into()), step, rtol, ..Default::default() };
+    let run = RunRequest { to: Some(to), method: Some(method.into()), step, tolerance: ToleranceRequest { relative: rtol, absolute: None }, ..Default::default() };
     check_accuracy(sheet, &StudyRequest { run, ..Default::default() }).unwrap()
 }
 
@@ -60,12 +60,12 @@ fn unstable_fixed_step_and_its_largest_stable_step() {
 
 #[test]
 fn stiffness() {
-    let r = check(STIFF, 10.0, "dp54", None, None);
+    let r = check(STIFF, 10.0, "dormand-prince-5", None, None);
     assert!(has(&r, "stiff"), "{:?}", codes(&r));
     let p = r.report.pitfalls.iter().find(|p| p.code == "stiff").unwrap();
     // λ = −1000 over a run of 10: ratio 1e4 (analytic Jacobian).
     assert!((p.number.unwrap() - 1e4).abs() < 1.0, "{:?}", p.number);
-    assert!(!has(&check(TANK, 200.0, "dp54", None, None), "stiff"));
+    assert!(!has(&check(TANK, 200.0, "dormand-prince-5", None, None), "stiff"));
 }
 
 #[test]
@@ -103,10 +103,10 @@ fn non_unique_start() {
 
 #[test]
 fn tolerance_too_loose_for_the_digits_shown() {
-    let r = check(TANK, 200.0, "dp54", None, Some(1e-2));
+    let r = check(TANK, 200.0, "dormand-prince-5", None, Some(1e-2));
     assert!(has(&r, "loose-tolerance"), "{:?}", codes(&r));
-    assert!(message(&r, "loose-tolerance").contains("Tighten rtol"));
-    assert!(!has(&check(TANK, 200.0, "dp54", None, None), "loose-tolerance"));
+    assert!(message(&r, "loose-tolerance").contains("Tighten the relative tolerance"));
+    assert!(!has(&check(TANK, 200.0, "dormand-prince-5", None, None), "loose-tolerance"));
 }
 
 /// x'' = −x from x = 1 at rest: x' = −sin t peaks at exactly 1 at t = 3π/2 (analytic),
@@ -129,8 +129,8 @@ fn chaotic_run_disagrees_with_its_check() {
     // (the largest Lyapunov exponent ≈ 0.906, from memory), so at rtol 1e-3 the
     // state at t = 30 is not determined by the run.
     let lorenz = "x' = 10*(y - x)\ny' = x*(28 - z) - y\nz' = x*y - 8/3*z\nx(0) = 1\ny(0) = 1\nz(0) = 1\n";
-    let r = check(lorenz, 30.0, "dp54", None, Some(1e-3));
+    let r = check(lorenz, 30.0, "dormand-prince-5", None, Some(1e-3));
     assert!(r.report.alarm, "{}", r.report.verdict);
     assert!(r.report.verdict.starts_with("Do not trust"), "{}", r.report.verdict);
-    assert!(!check(lorenz, 1.0, "dp54", None, None).report.alarm);
+    assert!(!check(lorenz, 1.0, "dormand-prince-5", None, None).report.alarm);
 }

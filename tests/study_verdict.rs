@@ -4,7 +4,7 @@
 //! no digit trusted. Each alarm has a benign control.
 
 use ratebook::api::study::{check_accuracy, AccuracyReport, StudyRequest};
-use ratebook::api::RunRequest;
+use ratebook::api::{RunRequest, ToleranceRequest};
 use ratebook::study::check::{Kind, Quantity};
 
 fn check(sheet: &str, run: RunRequest) -> AccuracyReport {
@@ -34,7 +34,7 @@ fn cooling_alarm_time() -> f64 {
 
 #[test]
 fn an_atol_typed_1e9_is_named_and_the_check_runs_at_sane_tolerances() {
-    let r = check(COOLING, RunRequest { to: Some(1200.0), atol: Some(1e9), ..Default::default() });
+    let r = check(COOLING, RunRequest { to: Some(1200.0), tolerance: ToleranceRequest { absolute: Some(1e9), ..Default::default() }, ..Default::default() });
     let rep = &r.report;
     // The pitfall in words: what was seen, what it means, what to do.
     assert!(has(&r, "tolerance-dwarfs-values"), "{:?}", rep.pitfalls);
@@ -67,7 +67,7 @@ fn an_atol_typed_1e9_is_named_and_the_check_runs_at_sane_tolerances() {
 #[test]
 fn rtol_1e300_is_named_too() {
     // y' = -y from 1: y(10) = exp(-10) = 4.539993e-5 (analytic).
-    let r = check("y' = -y\ny(0) = 1\n", RunRequest { to: Some(10.0), rtol: Some(1e300), ..Default::default() });
+    let r = check("y' = -y\ny(0) = 1\n", RunRequest { to: Some(10.0), tolerance: ToleranceRequest { relative: Some(1e300), ..Default::default() }, ..Default::default() });
     let rep = &r.report;
     assert!(has(&r, "tolerance-dwarfs-values"), "{:?}", rep.pitfalls);
     assert!(rep.verdict.starts_with("Do not trust"), "{}", rep.verdict);
@@ -92,8 +92,8 @@ fn sane_tolerances_raise_no_tolerance_pitfall() {
     assert!(r.report.how.starts_with("re-solved with the tolerances 100 times tighter"), "{}", r.report.how);
     // Loose but meaningful: a hundredth of a degree, and rtol 5 %.
     for run in [
-        RunRequest { to: Some(1200.0), atol: Some(0.01), ..Default::default() },
-        RunRequest { to: Some(1200.0), rtol: Some(0.05), ..Default::default() },
+        RunRequest { to: Some(1200.0), tolerance: ToleranceRequest { absolute: Some(0.01), ..Default::default() }, ..Default::default() },
+        RunRequest { to: Some(1200.0), tolerance: ToleranceRequest { relative: Some(0.05), ..Default::default() }, ..Default::default() },
     ] {
         let r = check(COOLING, run);
         assert!(!has(&r, "tolerance-dwarfs-values"), "{:?}", r.report.pitfalls);
@@ -106,8 +106,8 @@ fn the_verdict_never_contradicts_the_cross_check() {
     // Whatever the settings, a cross check that finds no digit in common means
     // an alarm and a verdict that does not vouch for any digit of those values.
     let cases = [
-        (COOLING, RunRequest { to: Some(1200.0), atol: Some(1e9), ..Default::default() }),
-        ("y' = -y\ny(0) = 1\n", RunRequest { to: Some(10.0), rtol: Some(1e300), ..Default::default() }),
+        (COOLING, RunRequest { to: Some(1200.0), tolerance: ToleranceRequest { absolute: Some(1e9), ..Default::default() }, ..Default::default() }),
+        ("y' = -y\ny(0) = 1\n", RunRequest { to: Some(10.0), tolerance: ToleranceRequest { relative: Some(1e300), ..Default::default() }, ..Default::default() }),
         (COOLING, RunRequest { to: Some(1200.0), ..Default::default() }),
     ];
     for (sheet, run) in cases {

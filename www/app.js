@@ -58,7 +58,7 @@ function readSettings() {
   const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
   const method = $("method").value;
   const s = { to: num("to"), method };
-  if (isFixed(method)) s.step = num("step"); else { s.rtol = num("rtol"); s.atol = num("atol"); }
+  if (isFixed(method)) s.step = num("step"); else s.tolerance = { relative: num("tol-relative"), absolute: num("tol-absolute") };
   const spacing = num("spacing");
   if (spacing !== undefined) s.spacing = spacing;
   return s;
@@ -67,7 +67,8 @@ function readSettings() {
 /** The settings as kept (all fields, for autosave/links/files). */
 function keptSettings() {
   const num = (id) => { const v = $(id).value.trim(); return v === "" ? undefined : Number(v); };
-  return { to: num("to"), method: $("method").value, rtol: num("rtol"), atol: num("atol"), step: num("step"), spacing: num("spacing") };
+  const tolerance = { relative: num("tol-relative"), absolute: num("tol-absolute") };
+  return { to: num("to"), method: $("method").value, tolerance, step: num("step"), spacing: num("spacing") };
 }
 
 /** Show settings `s`; returns the method id it asks for when this page has no such method (then `auto` is set). */
@@ -77,8 +78,8 @@ function writeSettings(s) {
   put("to", s.to);
   const known = !s.method || METHODS.some((m) => m[0] === s.method);
   $("method").value = known ? (s.method ?? METHODS[0][0]) : METHODS[0][0];
-  put("rtol", s.rtol);
-  put("atol", s.atol);
+  put("tol-relative", s.tolerance?.relative);
+  put("tol-absolute", s.tolerance?.absolute);
   put("step", s.step);
   $("spacing").value = typeof s.spacing === "number" ? text(s.spacing) : "";
   methodChanged();
@@ -94,7 +95,7 @@ function methodChanged() {
 function checkSettings(s) {
   if (!Number.isFinite(s.to)) return "Set the end of the run (a number).";
   if (isFixed(s.method) && !(s.step > 0)) return "Set the step h (a positive number) for a fixed-step method.";
-  if (!isFixed(s.method) && (!(s.rtol > 0) || !(s.atol > 0))) return "Set rtol and atol (positive numbers).";
+  if (!isFixed(s.method) && (!(s.tolerance.relative > 0) || !(s.tolerance.absolute > 0))) return "Set the relative and absolute tolerances (positive numbers).";
   if (s.spacing !== undefined && !(s.spacing > 0)) return "The output spacing must be a positive number, or blank for every step.";
   return null;
 }
@@ -113,7 +114,7 @@ const hitStepCap = (run) => (run.diagnostics ?? []).some((d) => d.code === "max-
 async function showJob(sheet, s, live) {
   const msg = { kind: "show", sheet, settings: s, table: !live };
   if (live && app.quickSteps > 0 && hasWorker()) {
-    const shown = timed("solve", () => runJob({ ...msg, settings: { ...s, maxSteps: app.quickSteps } }));
+    const shown = timed("solve", () => runJob({ ...msg, settings: { ...s, stepLimit: app.quickSteps } }));
     if (!hitStepCap(shown.plot)) return shown;
     app.quickSteps = 0;
   }
@@ -162,7 +163,8 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
-  showFieldRun(sheet, s, plotRun, { live });
+  const { spacing: _spacing, ...base } = s;
+  showFieldRun(sheet, base, plotRun, { live });
   if (!live) {
     showParams(outline, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
@@ -396,7 +398,7 @@ function initPage() {
   initExports(fileBase);
 
   $("run").addEventListener("click", () => { solveAndShow(); save(); });
-  for (const id of ["to", "rtol", "atol", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
+  for (const id of ["to", "tol-relative", "tol-absolute", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
   $("method").addEventListener("change", () => { methodChanged(); solveAndShow(); save(); });
   $("examples").addEventListener("change", () => { const id = $("examples").value; $("examples").value = ""; loadExample(id); });
   $("csv").addEventListener("click", () => { if (app.good?.tableRun) downloadCsv(app.good.tableRun, fileBase()); });

@@ -24,7 +24,7 @@ dd/dt = (inflow - outflow)/area               # water depth, m
 d(0) = 0.3
 mark when d > 1.2        # high-level alarm, m
 `,
-    settings: { to: 150, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.5, spacing: 5 },
+    settings: { to: 150, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.5, spacing: 5 },
     caution: "Storm water and flooding: pond volumes, spillway capacity and outlet ratings follow your local drainage standards and a qualified engineer's design. This estimate does not replace a flood study.",
   },
   {
@@ -34,7 +34,7 @@ mark when d > 1.2        # high-level alarm, m
 T' = -0.0021*(T - 22)    # degC per s
 T(0) = 180               # degC straight out of the mould
 `,
-    settings: { to: 1200, method: "auto", rtol: 1e-6, atol: 1e-9, step: 1, spacing: 60 },
+    settings: { to: 1200, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 1, spacing: 60 },
   },
   {
     id: "tank-draining",
@@ -50,7 +50,7 @@ h(0) = 2
 stop when h < 0.05
 mark when h < 1
 `,
-    settings: { to: 600, method: "auto", rtol: 1e-6, atol: 1e-9, step: 5, spacing: 10 },
+    settings: { to: 600, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 5, spacing: 10 },
     caution: "Draining and filling: confirm vent sizing and the structural rating of the tank before relying on these times; a blocked vent can pull a vacuum.",
   },
   {
@@ -64,12 +64,12 @@ P    = 12000             # heater power, W
 UA   = 45                # heat loss to the room, W/K
 Ta   = 18                # room temperature, degC
 ton  = 3600              # heater runs until this time, s
-heat = P*step(ton - t)   # heater power now, W
+heat = P*heaviside(ton - t)   # heater power now, W
 dT/dt = (heat - UA*(T - Ta))/(V*rho*cp)
 T(0) = 15
 mark when T > 25
 `,
-    settings: { to: 21600, method: "auto", rtol: 1e-6, atol: 1e-9, step: 30, spacing: 300 },
+    settings: { to: 21600, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 30, spacing: 300 },
     caution: "Hot water and heated vessels: temperature and pressure limits, relief valves and scald protection are set by the applicable codes and the equipment's rating, not by this estimate.",
   },
   {
@@ -85,7 +85,7 @@ v(0) = 0
 mark when v > 0.632*Vs
 mark when v > 20
 `,
-    settings: { to: 6, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.01, spacing: 0.05 },
+    settings: { to: 6, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.01, spacing: 0.05 },
     caution: CAUTION_ELECTRICAL,
   },
   {
@@ -102,7 +102,7 @@ i(0)  = 0
 vc(0) = 0
 mark when vc > 48
 `,
-    settings: { to: 0.04, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.0001, spacing: 0.0002 },
+    settings: { to: 0.04, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.0001, spacing: 0.0002 },
     caution: CAUTION_ELECTRICAL + " The capacitor voltage overshoots the supply: check it against the capacitor's rating.",
     field: ["vc", "i"],
   },
@@ -119,7 +119,7 @@ A(0) = 2
 B(0) = 0
 C(0) = 0
 `,
-    settings: { to: 120, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.5, spacing: 2 },
+    settings: { to: 120, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.5, spacing: 2 },
     caution: CAUTION_PROCESS,
     field: ["A", "B"],
   },
@@ -138,7 +138,7 @@ I(0) = 0
 P(0) = 0
 mark when P > 0.5
 `,
-    settings: { to: 10, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.0005, spacing: 0.1 },
+    settings: { to: 10, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.0005, spacing: 0.1 },
     caution: CAUTION_PROCESS,
     field: ["R", "P"],
   },
@@ -152,12 +152,12 @@ kd     = 0.05            # chlorine decay in the bulk water, 1/h
 dose   = 1.2             # dosing rate while the pump runs, kg/h
 every  = 6               # hours between doses
 length = 0.3333          # dose duration, h
-pump   = step(length - (t - every*floor(t/every)))   # 1 while dosing
+pump   = heaviside(length - (t - every*floor(t/every)))   # 1 while dosing
 dc/dt  = pump*dose*1000/V - (Q/V + kd)*c             # mg/L, t in h
 c(0) = 0.2
 mark when c > 1.2
 `,
-    settings: { to: 48, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.01, spacing: 0.25 },
+    settings: { to: 48, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.01, spacing: 0.25 },
     caution: "Dosing: disinfectant residuals and dose limits are set by your drinking-water regulations and the water safety plan. Confirm with measured residuals before changing a dosing schedule.",
   },
   {
@@ -177,7 +177,7 @@ v(0) = 0
 x(0) = 0
 stop when x > H
 `,
-    settings: { to: 10, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.01, spacing: 0.05 },
+    settings: { to: 10, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.01, spacing: 0.05 },
     caution: "Dropped objects: exclusion zones, load ratings and lifting plans follow your site's lifting and working-at-height rules, not this estimate.",
     field: ["x", "v"],
   },
@@ -194,7 +194,7 @@ dp/dt = conv*a*b*p - m*p
 b(0) = 30
 p(0) = 8
 `,
-    settings: { to: 60, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.05, spacing: 0.5 },
+    settings: { to: 60, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.05, spacing: 0.5 },
     field: ["b", "p"],
   },
   {
@@ -208,7 +208,7 @@ x'' = -(c*x' + K*x)/M    # deflection, m
 x(0)  = 0.004
 x'(0) = 0
 `,
-    settings: { to: 3, method: "auto", rtol: 1e-6, atol: 1e-9, step: 0.001, spacing: 0.005 },
+    settings: { to: 3, method: "auto", tolerance: { relative: 1e-6, absolute: 1e-9 }, step: 0.001, spacing: 0.005 },
     caution: "Structures and machinery: mount loads, fatigue and resonance margins are to be checked by a qualified engineer against the manufacturer's data and the applicable codes.",
     field: ["x", "x'"],
   },

@@ -46,7 +46,7 @@ export const GUIDE_FUNCTIONS = {
   round: { call: "round(x)", does: "nearest whole number; halves go away from zero", domain: "any x", switch: "at every half", checks: [["round(2.5)", 3], ["round(-2.5)", -3]] },
   signum: { call: "signum(x)", does: "1 for positive x and for 0, −1 for negative x", domain: "any x", switch: "at x = 0", checks: [["signum(0)", 1], ["signum(-3)", -1]] },
   sign: { call: "sign(x)", does: "1 above 0, 0 at 0, −1 below 0", domain: "any x", switch: "at x = 0", checks: [["sign(0)", 0], ["sign(-3)", -1], ["sign(7)", 1]] },
-  step: { call: "step(x)", does: "0 below 0, 1 at 0 and above: a switch that turns on", domain: "any x", switch: "at x = 0", checks: [["step(-0.1)", 0], ["step(0)", 1]] },
+  heaviside: { call: "heaviside(x)", does: "0 below 0, 1 at 0 and above: a switch that turns on", domain: "any x", switch: "at x = 0", checks: [["heaviside(-0.1)", 0], ["heaviside(0)", 1]] },
   atan2: { call: "atan2(y, x)", does: "angle of the point (x, y) from the positive x axis, from −pi to pi", domain: "any y, x; atan2(0, 0) is 0", checks: [["atan2(1, -1)", 3 * Math.PI / 4], ["atan2(0, 0)", 0]] },
   pow: { call: "pow(x, y)", does: "x to the power y, the same as x^y", domain: "NaN for negative x with a fractional y; ∞ for 0 to a negative power", checks: [["pow(2, 10)", 1024], ["pow(-8, 1/3)", NaN], ["pow(0, -1)", Infinity]] },
   hypot: { call: "hypot(x, y)", does: "sqrt(x^2 + y^2), without overflow in the squares", domain: "any x, y", checks: [["hypot(3, 4)", 5], ["hypot(3e200, 4e200)", 4.9999999999999995e200]] },
@@ -165,9 +165,9 @@ export const GUIDE_ENTRIES = [
     id: "switches", part: "Events and switches", title: "Switches",
     text: [
       "Where a rate is not smooth, the solver ends a step exactly where it changes, so a jump in a rate costs no accuracy. No statement is needed: the formula brings its switches with it.",
-      "The switches are: the zero of `x` in `abs`, `sign`, `signum` and `step`; where the arguments of `min` and `max` cross; `lo` and `hi` of `clamp`; every whole number for `floor` and `ceil`, every half for `round`; and wherever `a/b` is a whole number for `a % b`.",
+      "The switches are: the zero of `x` in `abs`, `sign`, `signum` and `heaviside`; where the arguments of `min` and `max` cross; `lo` and `hi` of `clamp`; every whole number for `floor` and `ceil`, every half for `round`; and wherever `a/b` is a whole number for `a % b`.",
     ],
-    example: "# Glasshouse heater on for the first 3 hours; t in hours, T in deg C\nP = 4*step(3 - t)        # kW\nT' = 0.6*P - 0.25*(T - 5)\nT(0) = 5\n",
+    example: "# Glasshouse heater on for the first 3 hours; t in hours, T in deg C\nP = 4*heaviside(3 - t)   # kW\nT' = 0.6*P - 0.25*(T - 5)\nT(0) = 5\n",
   },
   {
     id: "limits", part: "Limits", title: "What a sheet and a run may hold",

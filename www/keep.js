@@ -1,33 +1,67 @@
 // Keeping work: autosave in localStorage, share links in the URL fragment,
 // and the saved-file format. All three carry the same "kept model":
-//   { sheet: string, settings: { to, method, rtol, atol, step, spacing } }
-// The file format is documented in DEVELOPERS.md ("Saved files").
+//   { sheet: string, settings: { to, method, tolerance: { relative, absolute }, step, spacing } }
+// The file format is documented in DEVELOPERS.md ("Saved files"). Version 1
+// (files, links and autosaves made before the settings were renamed) is read
+// and mapped to today's names.
 
 export const FILE_FORMAT = "ratebook-model";
-export const FILE_VERSION = 1;
+export const FILE_VERSION = 2;
 export const MAX_KEPT_BYTES = 1 << 20;
 
 
 /** A typed problem with a kept model (a file, a link, an autosave). */
 export class KeptModelError extends Error {}
 
-const SETTING_KEYS = { to: "number", method: "string", rtol: "number", atol: "number", step: "number", spacing: "number" };
+const SETTING_KEYS = { to: "number", method: "string", step: "number", spacing: "number" };
+const TOLERANCE_KEYS = ["relative", "absolute"];
 
-/** Check and normalise a kept model; throws KeptModelError with a plain message. */
-export function checkKept(obj) {
+/** Version 1's method ids, with their ids now (as in src/api/mod.rs, FORMER_METHOD_IDS). */
+export const V1_METHOD_IDS = {
+  bs32: "bogacki-shampine-3", dp54: "dormand-prince-5", dp853: "dormand-prince-8",
+  beuler: "backward-euler", rodas4: "rosenbrock-4", radau5: "radau-iia-5",
+};
+
+/** Version 1's settings in today's names: `rtol`/`atol` become `tolerance`, old method ids new ones. */
+function fromV1(given) {
+  const { rtol, atol, ...rest } = given;
+  if (rtol !== undefined || atol !== undefined) rest.tolerance = { relative: rtol, absolute: atol };
+  if (Object.hasOwn(V1_METHOD_IDS, rest.method)) rest.method = V1_METHOD_IDS[rest.method];
+  return rest;
+}
+
+const absent = (v) => v === undefined || v === null || v === "";
+
+function checkNumber(v, what) {
+  if (typeof v !== "number" || !Number.isFinite(v)) throw new KeptModelError(`its setting "${what}" is not a valid number`);
+  return v;
+}
+
+/**
+ * Check and normalise a kept model of format `version` (1 or 2); throws
+ * KeptModelError with a plain message.
+ */
+export function checkKept(obj, version = FILE_VERSION) {
   if (!obj || typeof obj !== "object" || Array.isArray(obj)) throw new KeptModelError("it holds no model");
   if (typeof obj.sheet !== "string") throw new KeptModelError("it has no sheet text");
   if (obj.sheet.length > MAX_KEPT_BYTES) throw new KeptModelError("its sheet is over 1 MB");
   const settings = {};
-  const given = obj.settings && typeof obj.settings === "object" ? obj.settings : {};
+  let given = obj.settings && typeof obj.settings === "object" ? obj.settings : {};
+  if (version === 1) given = fromV1(given);
   for (const [k, type] of Object.entries(SETTING_KEYS)) {
     const v = given[k];
-    if (v === undefined || v === null || v === "") continue;
-    if (typeof v !== type || (type === "number" && !Number.isFinite(v))) {
-      throw new KeptModelError(`its setting "${k}" is not a valid ${type}`);
-    }
+    if (absent(v)) continue;
+    if (type === "number") checkNumber(v, k);
+    else if (typeof v !== type) throw new KeptModelError(`its setting "${k}" is not a valid ${type}`);
     if (type === "string" && !/^[a-z0-9_-]{1,32}$/.test(v)) throw new KeptModelError(`its setting "${k}" is not a method id`);
     settings[k] = v;
+  }
+  const tol = given.tolerance;
+  if (!absent(tol)) {
+    if (typeof tol !== "object" || Array.isArray(tol)) throw new KeptModelError(`its setting "tolerance" is not { relative, absolute }`);
+    const t = {};
+    for (const k of TOLERANCE_KEYS) if (!absent(tol[k])) t[k] = checkNumber(tol[k], `tolerance.${k}`);
+    settings.tolerance = t;
   }
   return { sheet: obj.sheet, settings };
 }
@@ -42,9 +76,10 @@ export function checkKept(obj) {
 export const pageCopy = () => location.href.split(/[?#]/)[0];
 const autosaveKey = () => `ratebook.autosave.v2 ${pageCopy()}`;
 const previousKey = () => `ratebook.previous.v2 ${pageCopy()}`;
-// Before keys were per copy, every copy on an origin shared this one; the
-// first copy to start takes it over.
+// Before keys were per copy, every copy on an origin shared these (holding
+// format version 1); the first copy to start takes the autosave over.
 const SHARED_AUTOSAVE_KEY = "ratebook.autosave.v1";
+const SHARED_PREVIOUS_KEY = "ratebook.previous.v1";
 
 /** This tab, in the autosave it writes (another tab's writes are told apart by it). */
 export const TAB = Math.random().toString(36).slice(2, 10);
@@ -76,12 +111,13 @@ function putJson(key, value) {
   }
 }
 
-function getJson(key) {
+/** The kept model stored under `key` in format `version`, or null. */
+function getJson(key, version = FILE_VERSION) {
   const s = storage();
   if (!s) return null;
   try {
     const raw = s.getItem(key);
-    return raw ? checkKept(JSON.parse(raw)) : null;
+    return raw ? checkKept(JSON.parse(raw), version) : null;
   } catch {
     return null;
   }
@@ -94,13 +130,13 @@ export const autosave = (kept) => putJson(autosaveKey(), { ...kept, tab: TAB });
 export function loadAutosave() {
   const own = getJson(autosaveKey());
   if (own) return own;
-  const shared = getJson(SHARED_AUTOSAVE_KEY);
+  const shared = getJson(SHARED_AUTOSAVE_KEY, 1);
   if (shared && putJson(autosaveKey(), shared)) storage()?.removeItem(SHARED_AUTOSAVE_KEY);
   return shared;
 }
 
 export const keepPrevious = (kept) => putJson(previousKey(), kept);
-export const loadPrevious = () => getJson(previousKey());
+export const loadPrevious = () => getJson(previousKey()) ?? getJson(SHARED_PREVIOUS_KEY, 1);
 
 /**
  * Call `onOther(what)` when another tab shows this copy of the page:
@@ -216,8 +252,8 @@ export async function readFragment(hash) {
     if (e instanceof KeptModelError) throw e;
     throw new KeptModelError("the link is damaged or cut short");
   }
-  if (json?.v !== FILE_VERSION) throw new KeptModelError(`the link is of version ${JSON.stringify(json?.v)}; this page reads version ${FILE_VERSION}`);
-  return checkKept(json);
+  if (json?.v !== 1 && json?.v !== FILE_VERSION) throw new KeptModelError(`the link is of version ${JSON.stringify(json?.v)}; this page reads versions 1 to ${FILE_VERSION}`);
+  return checkKept(json, json.v);
 }
 
 // ---- saved files
@@ -237,6 +273,6 @@ export function readFileText(text) {
     throw new KeptModelError("the file is not JSON (damaged or cut short?)");
   }
   if (json?.format !== FILE_FORMAT) throw new KeptModelError("the file is not a ratebook model");
-  if (json.version !== FILE_VERSION) throw new KeptModelError(`the file is of version ${JSON.stringify(json.version)}; this page reads version ${FILE_VERSION}`);
-  return checkKept(json);
+  if (json.version !== 1 && json.version !== FILE_VERSION) throw new KeptModelError(`the file is of version ${JSON.stringify(json.version)}; this page reads versions 1 to ${FILE_VERSION}`);
+  return checkKept(json, json.version);
 }

@@ -27,7 +27,7 @@ const CSS = `
 function settingRows(rep, settings) {
   const rows = [["method", `${rep.method.name} (${rep.method.id})`], ["run to", `${rep.independent} = ${settings.to}`]];
   if (!rep.method.adaptive) rows.push(["step h", String(settings.step)]);
-  else rows.push(["rtol", String(settings.rtol ?? 1e-6)], ["atol", String(settings.atol ?? 1e-9)]);
+  else rows.push(["relative tolerance", String(settings.tolerance?.relative ?? 1e-6)], ["absolute tolerance", String(settings.tolerance?.absolute ?? 1e-9)]);
   if (settings.params) for (const [k, v] of Object.entries(settings.params)) rows.push([`parameter ${k}`, String(v)]);
   return rows;
 }

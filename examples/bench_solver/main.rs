@@ -126,9 +126,9 @@ fn plot(input: &str, output: &str) -> Result<(), Box<dyn std::error::Error>> {
     root.fill(&WHITE)?;
     let panels = root.split_evenly((2, 2));
     let series: [(&str, &str, RGBColor); 5] = [
-        ("native", "bs32", RGBColor(120, 120, 120)),
-        ("native", "dp54", RGBColor(31, 119, 180)),
-        ("native", "dp853", RGBColor(214, 39, 40)),
+        ("native", "bogacki-shampine-3", RGBColor(120, 120, 120)),
+        ("native", "dormand-prince-5", RGBColor(31, 119, 180)),
+        ("native", "dormand-prince-8", RGBColor(214, 39, 40)),
         ("scipy", "RK45", RGBColor(44, 160, 44)),
         ("scipy", "DOP853", RGBColor(148, 103, 189)),
     ];

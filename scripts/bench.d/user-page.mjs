@@ -42,7 +42,7 @@ const rows = await page.evaluate(async (cases) => {
   const side = (c, s) => new Promise((ok) => { ab.onmessage = (e) => ok(e.data); ab.postMessage({ c, s }); });
   const out = [];
   for (const c of cases) {
-    const s = { to: c.to, method: c.method, rtol: c.rtol, atol: c.atol };
+    const s = { to: c.to, method: c.method, tolerance: { relative: c.rtol, absolute: c.atol } };
     for (let k = 0; k < 3; k++) await job({ kind: "solve", sheet: c.sheet, settings: s });
     const times = [];
     const t0 = performance.now();

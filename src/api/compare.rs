@@ -201,10 +201,9 @@ pub fn compare(
     let levels = req.levels.clamp(2, 8);
     let total = 1 + req.methods.len() * levels;
     let reference_req = RunRequest {
-        method: Some("dp54".into()),
+        method: Some("dormand-prince-5".into()),
         step: None,
-        rtol: Some(req.reference_rtol),
-        atol: Some(req.reference_rtol * 1e-3),
+        tolerance: super::ToleranceRequest { relative: Some(req.reference_rtol), absolute: Some(req.reference_rtol * 1e-3) },
         at: None,
         ..base.clone()
     };
@@ -215,7 +214,7 @@ pub fn compare(
         Some(q) => return Err(invalid("quantity", format!("the sheet has no state or helper named `{q}`"))),
         None => reference_report.states.first().cloned().unwrap_or_default(),
     };
-    let reference = pick(&reference_report, &quantity, "dp54", None);
+    let reference = pick(&reference_report, &quantity, "dormand-prince-5", None);
     let t0 = reference_report.t.first().copied().unwrap_or(0.0);
     let span = (base.to.unwrap_or(reference.end_t) - t0).abs();
     let h0 = match req.step {

@@ -70,8 +70,8 @@ pub fn field_view(sheet: &str, base: &RunRequest, req: &FieldRequest) -> Result<
     let mut model = crate::emit::EmittedModel::new(model);
     // Curves are drawn, not tabulated: a few digits beyond the pixels do.
     let tol = solve::Tolerance {
-        rtol: base.rtol.filter(|v| *v > 0.0).unwrap_or(1e-6).max(1e-5),
-        atol: base.atol.filter(|v| *v > 0.0).unwrap_or(1e-9).max(1e-8),
+        relative: base.tolerance.relative.filter(|v| *v > 0.0).unwrap_or(1e-6).max(1e-5),
+        absolute: base.tolerance.absolute.filter(|v| *v > 0.0).unwrap_or(1e-9).max(1e-8),
     };
     let cells = req.cells.unwrap_or(24).clamp(2, 80);
     let index = |name: &Option<String>, default: usize| -> Result<usize, ApiError> {

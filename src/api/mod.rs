@@ -16,9 +16,11 @@ use crate::solve::{self, Level, Run, Settings, SolveError, Status, Tolerance};
 pub mod study;
 
 /// Settings of one run, as the JS API takes them (`solve(sheet, settings)`).
-/// Absent fields take the solver's defaults ([`Settings::default`]).
-#[derive(Clone, Debug, Default, Deserialize, Serialize, PartialEq)]
-#[serde(rename_all = "camelCase", default)]
+/// Absent fields take the solver's defaults ([`Settings::default`]). A name
+/// that is not one of these is refused with [`UnknownSetting`], which names
+/// the setting meant (see [`SETTING_NAMES`] and [`FORMER_NAMES`]).
+#[derive(Clone, Debug, Default, Serialize, PartialEq)]
+#[serde(rename_all = "camelCase")]
 pub struct RunRequest {
     /// End of the run. Required; may be before the sheet's start (backward run).
     pub to: Option<f64>,
@@ -26,25 +28,22 @@ pub struct RunRequest {
     pub method: Option<String>,
     /// Step size `h` for fixed-step methods.
     pub step: Option<f64>,
-    /// Relative tolerance for adaptive methods (default 1e-6).
-    pub rtol: Option<f64>,
-    /// Absolute tolerance for adaptive methods (default 1e-9).
-    pub atol: Option<f64>,
+    /// Tolerances of the adaptive methods: `tolerance: { relative, absolute }`.
+    pub tolerance: ToleranceRequest,
     /// Output times; without them every accepted step is reported. More
     /// than [`solve::CEILING_OUTPUT`] are refused as the request is read,
     /// before any of them is converted.
-    #[serde(deserialize_with = "bounded_times")]
     pub at: Option<Vec<f64>>,
-    /// Step cap (default 1e6).
-    pub max_steps: Option<f64>,
+    /// Step limit (default 1e6).
+    pub step_limit: Option<f64>,
     /// Most output points kept without `at` (default 200 000).
-    pub max_output: Option<f64>,
+    pub output_limit: Option<f64>,
     /// Most event crossings recorded (default 10 000).
-    pub max_events: Option<f64>,
+    pub event_limit: Option<f64>,
     /// First step of an adaptive method (default automatic).
-    pub first_step: Option<f64>,
+    pub start_step: Option<f64>,
     /// Largest step of an adaptive method (default the run's length).
-    pub max_step: Option<f64>,
+    pub largest_step: Option<f64>,
     /// Parameter values that replace the sheet's, by name (sliders, sweeps).
     pub params: Option<std::collections::BTreeMap<String, f64>>,
     /// Locate the peak and trough of every state and helper (default
@@ -98,6 +97,211 @@ fn bounded_times<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<Vec<f6
         }
     }
     d.deserialize_option(Maybe)
+}
+
+/// The `tolerance` of a [`RunRequest`].
+#[derive(Clone, Copy, Debug, Default, Serialize, PartialEq)]
+pub struct ToleranceRequest {
+    /// Relative tolerance (default 1e-6).
+    pub relative: Option<f64>,
+    /// Absolute tolerance (default 1e-9).
+    pub absolute: Option<f64>,
+}
+
+/// Every setting [`RunRequest`] takes, as the JS API spells it (a dot for a
+/// field of `tolerance`).
+pub const SETTING_NAMES: [&str; 13] = [
+    "to",
+    "method",
+    "step",
+    "tolerance.relative",
+    "tolerance.absolute",
+    "at",
+    "stepLimit",
+    "outputLimit",
+    "eventLimit",
+    "startStep",
+    "largestStep",
+    "params",
+    "extrema",
+];
+
+/// The setting names of format version 1 (files, links and the JS API
+/// before it) with the names that replaced them. Version-1 files and links
+/// are read with these; `solve` refuses them, naming the new name.
+pub const FORMER_NAMES: [(&str, &str); 7] = [
+    ("rtol", "tolerance.relative"),
+    ("atol", "tolerance.absolute"),
+    ("firstStep", "startStep"),
+    ("maxStep", "largestStep"),
+    ("maxSteps", "stepLimit"),
+    ("maxOutput", "outputLimit"),
+    ("maxEvents", "eventLimit"),
+];
+
+/// The method ids of format version 1 with the ids that replaced them.
+pub const FORMER_METHOD_IDS: [(&str, &str); 6] = [
+    ("bs32", "bogacki-shampine-3"),
+    ("dp54", "dormand-prince-5"),
+    ("dp853", "dormand-prince-8"),
+    ("beuler", "backward-euler"),
+    ("rodas4", "rosenbrock-4"),
+    ("radau5", "radau-iia-5"),
+];
+
+/// A setting name that `solve` does not take, with the one most likely meant.
+#[derive(Clone, Debug, PartialEq)]
+pub struct UnknownSetting {
+    /// The name as given, with its path (`tolerance.relativ`).
+    pub name: String,
+    /// What it is taken for.
+    pub meant: Meant,
+}
+
+/// What an unknown setting name was most likely meant to be.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Meant {
+    /// A name of format version 1, replaced by this one.
+    Renamed(&'static str),
+    /// Close to this valid name: a typo.
+    Close(&'static str),
+    /// Not close to any valid name.
+    Nothing,
+}
+
+impl UnknownSetting {
+    /// The error for the name `key` inside `tolerance` (`inner`) or at the top.
+    fn new(key: &str, inner: bool) -> UnknownSetting {
+        let name = if inner { format!("tolerance.{key}") } else { key.to_string() };
+        let former = |k: &str| FORMER_NAMES.iter().find(|f| f.0 == k).map(|f| f.1);
+        let meant = if let Some(new) = former(key) {
+            Meant::Renamed(new)
+        } else {
+            // Typos are matched against the valid names and the former ones;
+            // the tolerance fields also without their `tolerance.`.
+            let mut candidates: Vec<(&str, &'static str)> = FORMER_NAMES.to_vec();
+            candidates.extend([("relative", "tolerance.relative"), ("absolute", "tolerance.absolute")]);
+            if !inner {
+                candidates.extend(SETTING_NAMES.iter().map(|n| (*n, *n)));
+                candidates.push(("tolerance", "tolerance"));
+            }
+            let meant = |name: &str| candidates.iter().find(|k| k.0 == name).map(|k| k.1);
+            let close = meant(key).or_else(|| sheet::suggest(key, candidates.iter().map(|c| c.0)).and_then(|c| meant(&c)));
+            close.map_or(Meant::Nothing, Meant::Close)
+        };
+        UnknownSetting { name, meant }
+    }
+}
+
+impl std::fmt::Display for UnknownSetting {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let name = &self.name;
+        match self.meant {
+            Meant::Renamed(new) => {
+                write!(f, "the setting `{name}` has a new name: `{new}`")?;
+                match new.strip_prefix("tolerance.") {
+                    Some(leaf) => write!(f, " (write `tolerance: {{ {leaf}: … }}`)"),
+                    None => Ok(()),
+                }
+            }
+            Meant::Close(valid) => write!(f, "unknown setting `{name}`; did you mean `{valid}`?"),
+            Meant::Nothing => write!(f, "unknown setting `{name}`; the settings are {}", SETTING_NAMES.join(", ")),
+        }
+    }
+}
+
+impl std::error::Error for UnknownSetting {}
+
+/// A method id of format version 1 given to `solve`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RenamedMethod {
+    /// The id as given, e.g. `dp54`.
+    pub old: String,
+    /// Its id now, e.g. `dormand-prince-5`.
+    pub new: &'static str,
+}
+
+impl std::fmt::Display for RenamedMethod {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "the method id `{}` has a new name: `{}`", self.old, self.new)
+    }
+}
+
+impl std::error::Error for RenamedMethod {}
+
+// The request is read key by key so that a name it does not take is an
+// error that says which name was meant (a derived `deny_unknown_fields` only
+// lists them all, and the JS reader it runs on never sees unknown keys).
+impl<'de> Deserialize<'de> for RunRequest {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct Keys;
+        impl<'de> serde::de::Visitor<'de> for Keys {
+            type Value = RunRequest;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("an object of run settings")
+            }
+            fn visit_map<A: serde::de::MapAccess<'de>>(self, mut map: A) -> Result<RunRequest, A::Error> {
+                let mut r = RunRequest::default();
+                while let Some(key) = map.next_key::<String>()? {
+                    match key.as_str() {
+                        "to" => r.to = map.next_value()?,
+                        "method" => r.method = map.next_value()?,
+                        "step" => r.step = map.next_value()?,
+                        "tolerance" => r.tolerance = map.next_value::<Option<ToleranceRequest>>()?.unwrap_or_default(),
+                        "at" => r.at = map.next_value::<Times>()?.0,
+                        "stepLimit" => r.step_limit = map.next_value()?,
+                        "outputLimit" => r.output_limit = map.next_value()?,
+                        "eventLimit" => r.event_limit = map.next_value()?,
+                        "startStep" => r.start_step = map.next_value()?,
+                        "largestStep" => r.largest_step = map.next_value()?,
+                        "params" => r.params = map.next_value()?,
+                        "extrema" => r.extrema = map.next_value()?,
+                        other => return Err(serde::de::Error::custom(UnknownSetting::new(other, false))),
+                    }
+                }
+                if let Some(old) = r.method.as_deref() {
+                    if let Some(&(_, new)) = FORMER_METHOD_IDS.iter().find(|(k, _)| *k == old) {
+                        return Err(serde::de::Error::custom(RenamedMethod { old: old.to_string(), new }));
+                    }
+                }
+                Ok(r)
+            }
+        }
+        d.deserialize_any(Keys)
+    }
+}
+
+impl<'de> Deserialize<'de> for ToleranceRequest {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct Keys;
+        impl<'de> serde::de::Visitor<'de> for Keys {
+            type Value = ToleranceRequest;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("the tolerances as `{ relative, absolute }`")
+            }
+            fn visit_map<A: serde::de::MapAccess<'de>>(self, mut map: A) -> Result<ToleranceRequest, A::Error> {
+                let mut t = ToleranceRequest::default();
+                while let Some(key) = map.next_key::<String>()? {
+                    match key.as_str() {
+                        "relative" => t.relative = map.next_value()?,
+                        "absolute" => t.absolute = map.next_value()?,
+                        other => return Err(serde::de::Error::custom(UnknownSetting::new(other, true))),
+                    }
+                }
+                Ok(t)
+            }
+        }
+        d.deserialize_any(Keys)
+    }
+}
+
+/// Output times read through [`bounded_times`].
+struct Times(Option<Vec<f64>>);
+
+impl<'de> Deserialize<'de> for Times {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        bounded_times(d).map(Times)
+    }
 }
 
 /// Values keyed by name, in model order (a JS object).
@@ -224,14 +428,18 @@ pub fn settings(req: &RunRequest) -> Settings {
         method: req.method.clone().unwrap_or_else(|| "auto".to_string()),
         to: req.to.unwrap_or(f64::NAN),
         step: req.step,
-        tol: Tolerance { rtol: req.rtol.unwrap_or(d.tol.rtol), atol: req.atol.unwrap_or(d.tol.atol) },
+        tol: Tolerance {
+            relative: req.tolerance.relative.unwrap_or(d.tol.relative),
+            absolute: req.tolerance.absolute.unwrap_or(d.tol.absolute),
+        },
         at: req.at.clone(),
-        max_steps: count(req.max_steps, d.max_steps),
-        max_output: count(req.max_output, d.max_output as u64) as usize,
-        max_events: count(req.max_events, d.max_events as u64) as usize,
-        first_step: req.first_step,
-        max_step: req.max_step,
+        max_steps: count(req.step_limit, d.max_steps),
+        max_output: count(req.output_limit, d.max_output as u64) as usize,
+        max_events: count(req.event_limit, d.max_events as u64) as usize,
+        first_step: req.start_step,
+        max_step: req.largest_step,
         extrema: req.extrema.unwrap_or(d.extrema),
+        ..d
     }
 }
 
@@ -334,7 +542,7 @@ thread_local! {
 }
 
 fn check_counts(req: &RunRequest) -> Result<(), ApiError> {
-    for (field, v) in [("max_steps", req.max_steps), ("max_output", req.max_output), ("max_events", req.max_events)] {
+    for (field, v) in [("stepLimit", req.step_limit), ("outputLimit", req.output_limit), ("eventLimit", req.event_limit)] {
         if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
             return Err(ApiError::Settings(SolveError::InvalidSettings { field, reason: "must be a number ≥ 0".to_string() }));
         }
@@ -438,8 +646,8 @@ mod tests {
         // A sheet with helpers, a switch, an event and a parameter, on an
         // explicit and a stiff method (whose Jacobian tapes a kept model has
         // built already); our own scenario.
-        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*step(t - 2)\nh(0) = 3\nmark when h < 1\n";
-        for method in ["dp54", "auto", "radau5"] {
+        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*heaviside(t - 2)\nh(0) = 3\nmark when h < 1\n";
+        for method in ["dormand-prince-5", "auto", "radau-iia-5"] {
             let req = RunRequest { to: Some(10.0), method: Some(method.into()), ..Default::default() };
             let fresh = run_model(&mut model(sheet, &req).unwrap(), &req).unwrap();
             for _ in 0..3 {
@@ -462,8 +670,8 @@ mod tests {
 
     #[test]
     fn a_run_without_extrema_takes_the_same_steps_and_reports_none() {
-        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*step(t - 2)\nh(0) = 3\nmark when h < 1\n";
-        for method in ["dp54", "dp853", "auto"] {
+        let sheet = "k = 0.8\nq = k*sqrt(abs(h))\nh' = -q + 0.1*heaviside(t - 2)\nh(0) = 3\nmark when h < 1\n";
+        for method in ["dormand-prince-5", "dormand-prince-8", "auto"] {
             let req = RunRequest { to: Some(10.0), method: Some(method.into()), ..Default::default() };
             let with = solve(sheet, &req).unwrap();
             let without = solve(sheet, &RunRequest { extrema: Some(false), ..req.clone() }).unwrap();
@@ -481,7 +689,7 @@ mod tests {
         solve(sheet, &req).unwrap();
         let unknown = RunRequest { params: Some([("c".to_string(), 1.0)].into()), ..req.clone() };
         assert!(matches!(solve(sheet, &unknown), Err(ApiError::Settings(SolveError::InvalidSettings { field: "params", .. }))));
-        let bad = RunRequest { max_steps: Some(-1.0), ..req.clone() };
+        let bad = RunRequest { step_limit: Some(-1.0), ..req.clone() };
         assert!(matches!(solve(sheet, &bad), Err(ApiError::Settings(SolveError::InvalidSettings { field: "max_steps", .. }))));
         assert!(matches!(solve("y' = \n", &req), Err(ApiError::Sheet(_))));
         assert_eq!(exact(&solve(sheet, &req).unwrap()), exact(&run_model(&mut model(sheet, &req).unwrap(), &req).unwrap()));

@@ -259,6 +259,7 @@ pub fn convergence_svg(study: &Sweep, width: u32, height: u32) -> Result<String,
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::api::ToleranceRequest;
 
     const DECAY: &str = "k = 0.5\ndy/dt = -k*y\ny(0) = 1\n";
 
@@ -288,7 +289,7 @@ mod tests {
 
     #[test]
     fn an_accuracy_check_reports_its_work_without_a_total_until_the_end() {
-        let req = StudyRequest { run: RunRequest { to: Some(200.0), rtol: Some(1e-10), ..Default::default() }, ..Default::default() };
+        let req = StudyRequest { run: RunRequest { to: Some(200.0), tolerance: ToleranceRequest { relative: Some(1e-10), absolute: None }, ..Default::default() }, ..Default::default() };
         let mut seen: Vec<(u64, Option<u64>)> = Vec::new();
         check_accuracy_with(DECAY, &req, &mut |d, t| seen.push((d, t))).unwrap();
         let (last, rest) = seen.split_last().unwrap();

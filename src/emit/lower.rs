@@ -402,7 +402,7 @@ fn body(
                     c.f64_const(0.0).op(cmp).op(Simple::Select);
                 }
             }
-            Step => {
+            Heaviside => {
                 // x >= 0 ? 1 : (x < 0 ? 0 : x)
                 c.f64_const(1.0).f64_const(0.0);
                 x.push(c);

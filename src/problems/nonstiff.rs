@@ -254,7 +254,7 @@ pub fn bench_cases() -> Vec<super::bench::BenchCase> {
     let mut v = Vec::new();
     for problem in ["arenstorf", "lorenz", "brusselator", "oscillator"] {
         for tol in [1e-3, 1e-6, 1e-9] {
-            for method in ["bs32", "dp54", "dp853"] {
+            for method in ["bogacki-shampine-3", "dormand-prince-5", "dormand-prince-8"] {
                 v.push(super::bench::BenchCase { problem, method, rtol: tol, atol: tol });
             }
         }

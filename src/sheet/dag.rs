@@ -333,7 +333,7 @@ impl Graph {
             Min | Max => {
                 // min: da where a < b, else db; max: da where a > b, else db.
                 let diff = if op == Min { self.binary(Sub, a, b) } else { self.binary(Sub, b, a) };
-                let s = self.unary(Step, diff);
+                let s = self.unary(Heaviside, diff);
                 let delta = self.d_sub(db, da);
                 let t = self.d_mul(s, delta);
                 self.d_add(da, t)
@@ -437,7 +437,7 @@ impl Graph {
                 let den = self.bin_lc(Sub, 1.0, a2);
                 self.d_div(da, den)
             }
-            Floor | Ceil | Round | Trunc | Signum | Sign | Step => zero,
+            Floor | Ceil | Round | Trunc | Signum | Sign | Heaviside => zero,
             AddC => da,
         }
     }

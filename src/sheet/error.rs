@@ -34,6 +34,14 @@ pub enum ModelErrorKind {
         /// The closest known function, when one is close enough.
         suggestion: Option<String>,
     },
+    /// A function called by the name an earlier version of the language gave
+    /// it, e.g. `step(x)`, now `heaviside(x)`.
+    RenamedFunction {
+        /// The old name as written.
+        name: String,
+        /// Its name now.
+        now: &'static str,
+    },
     /// A state with no initial value.
     MissingInitialValue {
         /// The state, e.g. `x'`.
@@ -220,6 +228,9 @@ impl ModelErrorKind {
             UnknownFunction { name, suggestion } => {
                 format!("unknown function \"{name}\"{}", mean(suggestion))
             }
+            RenamedFunction { name, now } => format!(
+                "the function \"{name}\" is now called \"{now}\", with the same meaning: write {now}(…) here"
+            ),
             MissingInitialValue { state } => format!(
                 "the state \"{state}\" has no initial value; add a line such as \"{}(0) = 1\"",
                 state

@@ -238,8 +238,8 @@ operations! {
                 x
             }
         };
-    /// `step(x)`: `1` at or above zero, `0` below, NaN for NaN.
-    Step => {
+    /// `heaviside(x)`: `1` at or above zero, `0` below, NaN for NaN.
+    Heaviside => {
             if x >= 0.0 {
                 1.0
             } else if x < 0.0 {

@@ -7,7 +7,7 @@
 //! **Switch functions.** Where a rate is not smooth, the lowering records a
 //! function that changes sign exactly there, so the solver can end a step on
 //! it:
-//! - `abs(x)`, `sign(x)`, `signum(x)`, `step(x)`: `x`;
+//! - `abs(x)`, `sign(x)`, `signum(x)`, `heaviside(x)`: `x`;
 //! - `min(a, b)`, `max(a, b)`: `a - b` (one per pair when there are more arguments);
 //!   `min` and `max` fold from `+inf` and `-inf` as meval does, so a NaN argument is passed over;
 //! - `clamp(x, lo, hi)`: `x - lo` and `x - hi`;
@@ -194,7 +194,7 @@ fn lower_expr(
                         let x = arg(0);
                         let r = g.unary(op, x);
                         let s = match op {
-                            Op::Abs | Op::Sign | Op::Signum | Op::Step => Some(x),
+                            Op::Abs | Op::Sign | Op::Signum | Op::Heaviside => Some(x),
                             Op::Floor | Op::Ceil => Some(periodic(g, Op::Sin, x)),
                             Op::Round => Some(periodic(g, Op::Cos, x)),
                             _ => None,

@@ -32,8 +32,8 @@
 //!   `-(x^2)`), `pi`, `e`, meval's functions (`sqrt exp ln abs`, trigonometric,
 //!   hyperbolic and inverse ones, `floor ceil round signum atan2 min max`) and
 //!   ours: `log` (natural), `log10`, `pow(x, y)`, `hypot(x, y)`,
-//!   `clamp(x, lo, hi)` (`min(max(x, lo), hi)`), `step(x)` (0 below 0, 1 at
-//!   or above) and `sign(x)` (-1, 0 or 1).
+//!   `clamp(x, lo, hi)` (`min(max(x, lo), hi)`), `heaviside(x)` (0 below 0, 1
+//!   at or above) and `sign(x)` (-1, 0 or 1).
 //!
 //! [`compile`] turns the text into a [`Model`], which implements
 //! [`Problem`](crate::problem::Problem). The pipeline: [`scan`] (our checks
@@ -52,6 +52,7 @@ pub mod outline;
 pub mod scan;
 
 pub use error::{ModelError, ModelErrorKind};
+pub(crate) use error::suggest;
 pub use model::{Model, Param};
 
 /// Compile a sheet into a model, or say what is wrong with it and where.

@@ -58,7 +58,7 @@ pub const FUNCTIONS: &[(&str, Func, Option<usize>)] = &[
     ("round", Func::Unary(Op::Round), Some(1)),
     ("signum", Func::Unary(Op::Signum), Some(1)),
     ("sign", Func::Unary(Op::Sign), Some(1)),
-    ("step", Func::Unary(Op::Step), Some(1)),
+    ("heaviside", Func::Unary(Op::Heaviside), Some(1)),
     ("atan2", Func::Binary(Op::Atan2), Some(2)),
     ("pow", Func::Binary(Op::Pow), Some(2)),
     ("hypot", Func::Binary(Op::Hypot), Some(2)),
@@ -66,6 +66,11 @@ pub const FUNCTIONS: &[(&str, Func, Option<usize>)] = &[
     ("min", Func::Min, None),
     ("max", Func::Max, None),
 ];
+
+/// Functions an earlier version of the language named otherwise: the old
+/// name and the name now. A call by the old name is an error that gives the
+/// new one (no alias: `step` read as a function next to the setting "Step h").
+pub const RENAMED_FUNCTIONS: &[(&str, &str)] = &[("step", "heaviside")];
 
 /// Names the language keeps: every function, `pi` and `e`.
 pub fn is_reserved(name: &str) -> bool {
@@ -501,6 +506,9 @@ pub fn scan_expr(text: &str, col: usize, line: usize) -> Result<Expr, ModelError
                     return Err(syntax(line, at(id_end), "a function name cannot have a prime"));
                 }
                 let Some(&(fname, _, arity)) = FUNCTIONS.iter().find(|f| f.0 == name) else {
+                    if let Some(&(_, now)) = RENAMED_FUNCTIONS.iter().find(|f| f.0 == name) {
+                        return Err(err(line, at(start), K::RenamedFunction { name: name.to_string(), now }));
+                    }
                     let suggestion = suggest(name, FUNCTIONS.iter().map(|f| f.0));
                     return Err(err(line, at(start), K::UnknownFunction { name: name.to_string(), suggestion }));
                 };

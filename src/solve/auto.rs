@@ -23,10 +23,10 @@
 use super::{StepReport, Switching};
 
 /// The explicit method of `auto`.
-pub const EXPLICIT: &str = "dp54";
+pub const EXPLICIT: &str = "dormand-prince-5";
 /// The implicit method of `auto`: fewest Jacobians and factorizations at
 /// rtol 1e-4 to 1e-10 among ours (see `scripts/bench.d/stiff`).
-pub const IMPLICIT: &str = "radau5";
+pub const IMPLICIT: &str = "radau-iia-5";
 /// Accepted implicit steps in a row that must look non-stiff before `auto`
 /// switches back.
 pub const CALM_STEPS: u32 = 25;

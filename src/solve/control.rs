@@ -45,7 +45,7 @@ impl StepControl {
         StepControl { beta_k: 0.0, safety: 0.9, fac_min: 0.333, fac_max: 6.0, reject_alpha: true, predictive: true };
     /// For methods without constants of their own (the stiff methods):
     /// `β·k = 0.2`, safety 0.9, factors 0.2 to 10, rejection with `1/k`, no
-    /// predictive cap (on radau5 it cost more Jacobians and factorizations at
+    /// predictive cap (on radau-iia-5 it cost more Jacobians and factorizations at
     /// equal error on the stiff bench).
     pub const GENERAL: StepControl =
         StepControl { beta_k: 0.2, safety: 0.9, fac_min: 0.2, fac_max: 10.0, reject_alpha: false, predictive: false };
@@ -75,7 +75,7 @@ impl StepControl {
 ///
 /// With `predictive`, an accepted step's factor is at most Gustafsson's
 /// predictive one (Gustafsson, *BIT* 34 (1994); Hairer & Wanner, *Solving
-/// ODEs II*, Sec. IV.8, as `radau5` runs it, with `k` for its 4):
+/// ODEs II*, Sec. IV.8, as `radau-iia-5` runs it, with `k` for its 4):
 ///
 /// ```text
 /// h_new = h · clamp(safety · min(err^(-α) · err_prev^β, (h / h_prev) · err^(-1/k) · (err_prev / err)^(1/k)), fac_min, fac_max)

@@ -288,7 +288,7 @@ impl Entry for Complex<f64> {
 /// random and ill-conditioned matrices), which allocates a matrix and a
 /// permutation per factorization and divides by the (complex) pivots in
 /// every solve; here the pivots' reciprocals are kept. Measured on the stiff
-/// benchmark's cases (Van der Pol, Robertson; radau5, rodas4, auto), by
+/// benchmark's cases (Van der Pol, Robertson; radau-iia-5, rosenbrock-4, auto), by
 /// alternating runs of both builds: 6–22 % less time in wasm under Node and
 /// 5–33 % natively (load average 1.7), with the same work counts. Natively
 /// the instruction counts are about equal (cachegrind), so the gain is in

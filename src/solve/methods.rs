@@ -89,7 +89,7 @@ impl Family {
 #[derive(serde::Serialize)]
 #[serde(rename_all = "camelCase")]
 pub struct MethodInfo {
-    /// Stable id used by the JS API and the sheet, e.g. `dp54`.
+    /// Stable id used by the JS API, saved files and links, e.g. `dormand-prince-5`.
     pub id: &'static str,
     /// Full name, e.g. `Dormand–Prince 5(4)`.
     pub name: &'static str,
@@ -237,7 +237,7 @@ static REGISTRY: [MethodInfo; 12] = [
         switching: None,
     },
     MethodInfo {
-        id: "bs32",
+        id: "bogacki-shampine-3",
         name: "Bogacki–Shampine 3(2)",
         order: 3,
         embedded_order: Some(2),
@@ -252,7 +252,7 @@ static REGISTRY: [MethodInfo; 12] = [
         switching: None,
     },
     MethodInfo {
-        id: "dp54",
+        id: "dormand-prince-5",
         name: "Dormand–Prince 5(4)",
         order: 5,
         embedded_order: Some(4),
@@ -267,7 +267,7 @@ static REGISTRY: [MethodInfo; 12] = [
         switching: None,
     },
     MethodInfo {
-        id: "dp853",
+        id: "dormand-prince-8",
         name: "Dormand–Prince 8(5,3)",
         order: 8,
         embedded_order: Some(5),
@@ -276,13 +276,13 @@ static REGISTRY: [MethodInfo; 12] = [
         adaptive: true,
         implicit: false,
         reference: "Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.10 and the code dop853.f",
-        summary: "Adaptive, eighth order, twelve evaluations per step; for tight tolerances (rtol 1e-7 and below).",
+        summary: "Adaptive, eighth order, twelve evaluations per step; for tight tolerances (relative tolerance 1e-7 and below).",
         dense_order: 7,
         family: Family::Explicit(&tableau::DP853),
         switching: None,
     },
     MethodInfo {
-        id: "beuler",
+        id: "backward-euler",
         name: "Backward Euler",
         order: 1,
         embedded_order: None,
@@ -312,8 +312,8 @@ static REGISTRY: [MethodInfo; 12] = [
         switching: None,
     },
     MethodInfo {
-        id: "rodas4",
-        name: "Rosenbrock RODAS 4(3)",
+        id: "rosenbrock-4",
+        name: "Rosenbrock 4(3), L-stable",
         order: 4,
         embedded_order: Some(3),
         stages: 6,
@@ -321,14 +321,14 @@ static REGISTRY: [MethodInfo; 12] = [
         adaptive: true,
         implicit: true,
         reference: RODAS4.reference,
-        summary: "Adaptive, stiff (L-stable), fourth order, one Jacobian and one factorization per step; for stiff problems at rtol 1e-2 to 1e-8.",
+        summary: "Adaptive, stiff (L-stable), fourth order, one Jacobian and one factorization per step; for stiff problems at relative tolerances 1e-2 to 1e-8.",
         dense_order: 3,
         family: Family::Rosenbrock(&RODAS4),
         switching: None,
     },
     MethodInfo {
-        id: "radau5",
-        name: "Radau IIA 5",
+        id: "radau-iia-5",
+        name: "Radau IIA, order 5",
         order: 5,
         embedded_order: Some(3),
         stages: 3,
@@ -343,15 +343,15 @@ static REGISTRY: [MethodInfo; 12] = [
     },
     MethodInfo {
         id: "auto",
-        name: "Automatic",
+        name: "Switches explicit ⇄ implicit (Dormand–Prince 5(4) / Radau IIA)",
         order: 5,
         embedded_order: Some(4),
         stages: 7,
         fsal: true,
         adaptive: true,
         implicit: false,
-        reference: "Dormand–Prince 5(4) and Radau IIA 5; see dp54 and radau5",
-        summary: "Adaptive, the default: Dormand–Prince 5(4), switching to Radau IIA 5 while the problem is stiff and back when it is not.",
+        reference: "Dormand–Prince 5(4) and Radau IIA of order 5; see dormand-prince-5 and radau-iia-5",
+        summary: "Adaptive, the default: runs explicit Dormand–Prince 5(4), switches to implicit Radau IIA (order 5) while the problem is stiff and back when it is not.",
         dense_order: 4,
         family: Family::Explicit(&tableau::DP54),
         switching: Some(super::auto::policy),

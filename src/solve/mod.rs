@@ -72,7 +72,7 @@ use crate::problem::NonFiniteCause;
 /// ([`Settings::default`]); set the ones you need with struct update syntax.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Settings {
-    /// Registry id of the method (see [`methods()`]). Default `"dp54"`.
+    /// Registry id of the method (see [`methods()`]). Default `"dormand-prince-5"`.
     pub method: String,
     /// End of the run; earlier than `t0` integrates backward. Must be finite.
     /// Default 1.
@@ -82,9 +82,9 @@ pub struct Settings {
     /// without error control (for convergence studies). The last step is
     /// shortened to land exactly on `to`. Default `None`.
     pub step: Option<f64>,
-    /// Tolerances of the adaptive methods. Default rtol 1e-6, atol 1e-9. Valid:
-    /// rtol and atol finite and ≥ 0, not both 0; an rtol in (0, 1e-14) is
-    /// raised to 1e-14 with a note.
+    /// Tolerances of the adaptive methods. Default relative 1e-6, absolute
+    /// 1e-9. Valid: both finite and ≥ 0, not both 0; a relative tolerance in
+    /// (0, 1e-14) is raised to 1e-14 with a note.
     pub tol: Tolerance,
     /// Output times. When given, the run reports the solution exactly at these
     /// times (from the continuous extension, never by forcing steps); they must
@@ -112,14 +112,14 @@ pub struct Settings {
     pub max_step: Option<f64>,
     /// Locate every state's and helper's maximum and minimum over the run
     /// ([`Run::extrema`]). Default `true`. It costs no evaluations of the rates
-    /// except for `dp853`, whose continuous extension needs three more per step.
+    /// except for `dormand-prince-8`, whose continuous extension needs three more per step.
     pub extrema: bool,
 }
 
 impl Default for Settings {
     fn default() -> Self {
         Settings {
-            method: "dp54".to_string(),
+            method: "dormand-prince-5".to_string(),
             to: 1.0,
             step: None,
             tol: Tolerance::default(),
@@ -244,7 +244,7 @@ pub struct Diagnostic {
 pub enum SolveError {
     /// A setting or input is out of its valid range.
     InvalidSettings {
-        /// The setting, e.g. `step` or `tol.rtol`.
+        /// The setting, e.g. `step` or `tol.relative`.
         field: &'static str,
         /// What is wrong with it.
         reason: String,

@@ -69,11 +69,11 @@ impl RosenbrockTableau {
     }
 }
 
-/// RODAS (here `rodas4`): order 4 with an embedded order-3 solution, 6 stages,
+/// RODAS (here `rosenbrock-4`): order 4 with an embedded order-3 solution, 6 stages,
 /// L-stable and stiffly accurate (both solutions), with a continuous extension
 /// of order 3. One Jacobian and one factorization per step, six
 /// right-hand-side evaluations. The default stiff method: use it for stiff
-/// systems at rtol 1e-2 to 1e-8; at tighter tolerances `radau5` takes fewer
+/// systems at rtol 1e-2 to 1e-8; at tighter tolerances `radau-iia-5` takes fewer
 /// steps.
 ///
 /// Source: Hairer & Wanner, *Solving ODEs II* (2nd ed., 1996), Sec. VI.4,
@@ -87,7 +87,7 @@ impl RosenbrockTableau {
 // The digits as published, kept whole.
 #[allow(clippy::excessive_precision)]
 pub static RODAS4: RosenbrockTableau = RosenbrockTableau {
-    id: "rodas4",
+    id: "rosenbrock-4",
     order: 4,
     embedded_order: 3,
     gamma: 0.25,
@@ -339,7 +339,7 @@ mod tests {
             let mut st = Rosenbrock::new(&RODAS4, 2);
             let y0 = exact_solution(0.0);
             let mut y1 = [0.0; 2];
-            let tol = Tolerance { rtol: 0.0, atol: 1.0 };
+            let tol = Tolerance { relative: 0.0, absolute: 1.0 };
             let a = st.attempt(&mut p, 0.0, &y0, h, &tol, &mut y1, &mut Stats::default()).unwrap();
             ests.push((h, a.error.unwrap()));
         }

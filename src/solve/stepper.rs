@@ -22,20 +22,21 @@ pub struct Stats {
     pub factorizations: u64,
 }
 
-/// Error weights: a component's error `e_i` counts as `e_i / (atol + rtol·max(|y_i|, |y_new_i|))`.
+/// Error weights: a component's error `e_i` counts as
+/// `e_i / (absolute + relative·max(|y_i|, |y_new_i|))`.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Tolerance {
     /// Relative tolerance. Default 1e-6.
-    pub rtol: f64,
+    pub relative: f64,
     /// Absolute tolerance. Default 1e-9.
-    pub atol: f64,
+    pub absolute: f64,
 }
 
 impl Tolerance {
-    /// The error weight of one component: `atol + rtol·max(|y|, |y_new|)`.
+    /// The error weight of one component: `absolute + relative·max(|y|, |y_new|)`.
     #[inline]
     pub fn weight(&self, y: f64, y_new: f64) -> f64 {
-        self.atol + self.rtol * max_of(y.abs(), y_new.abs())
+        self.absolute + self.relative * max_of(y.abs(), y_new.abs())
     }
 }
 
@@ -83,7 +84,7 @@ pub(crate) fn inf_norm(y: &[f64]) -> f64 {
 
 impl Default for Tolerance {
     fn default() -> Self {
-        Tolerance { rtol: 1e-6, atol: 1e-9 }
+        Tolerance { relative: 1e-6, absolute: 1e-9 }
     }
 }
 
@@ -178,7 +179,7 @@ mod tests {
 
     #[test]
     fn weighted_rms_matches_definition() {
-        let tol = Tolerance { rtol: 0.5, atol: 1.0 };
+        let tol = Tolerance { relative: 0.5, absolute: 1.0 };
         // weights 1 + 0.5·max(|y|,|z|) = 2 and 3
         let v = weighted_rms(&[2.0, 3.0], &[2.0, 0.0], &[1.0, 4.0], &tol);
         assert!((v - 1.0).abs() < 1e-15);

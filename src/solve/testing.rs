@@ -69,7 +69,7 @@ pub enum DenseCheck {
 pub fn fixed_step_error(st: &mut dyn Stepper, m: usize, check: DenseCheck) -> f64 {
     let mut p = nonlinear_exact();
     let h = 1.0 / m as f64;
-    let tol = Tolerance { rtol: 1e-12, atol: 1e-12 };
+    let tol = Tolerance { relative: 1e-12, absolute: 1e-12 };
     let mut y = exact_solution(0.0).to_vec();
     let mut y1 = y.clone();
     let mut stats = Stats::default();

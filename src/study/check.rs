@@ -107,9 +107,9 @@ fn status_word(s: &Status) -> &'static str {
 /// where a time's scale is the run's length.
 fn implied(tol: &solve::Tolerance, k: &Key, value: f64, span: f64) -> f64 {
     if k.kind.is_time() {
-        tol.rtol * span.max(value.abs()) + tol.atol
+        tol.relative * span.max(value.abs()) + tol.absolute
     } else {
-        tol.rtol * value.abs() + tol.atol
+        tol.relative * value.abs() + tol.absolute
     }
 }
 
@@ -154,19 +154,19 @@ pub fn check(
         // Tolerances that ask for no digit are held to ones that do before
         // tightening (the `tolerance-dwarfs-values` pitfall names them).
         let start = pitfalls::sane(settings.tol, pitfalls::value_scale(&run, y0));
-        let tight = |f: f64| solve::Tolerance { rtol: (start.rtol / f).max(RTOL_FLOOR), atol: start.atol / f };
+        let tight = |f: f64| solve::Tolerance { relative: (start.relative / f).max(RTOL_FLOOR), absolute: start.absolute / f };
         let tol = tight(100.0);
         let mut text = if start == settings.tol {
-            format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.rtol), plain(tol.atol))
+            format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.relative), plain(tol.absolute))
         } else {
             format!(
                 "re-solved at rtol {}, atol {}: 100 times tighter than rtol {}, atol {}, which ask for digits where the run's (rtol {}, atol {}) do not",
-                plain(tol.rtol),
-                plain(tol.atol),
-                plain(start.rtol),
-                plain(start.atol),
-                plain(settings.tol.rtol),
-                plain(settings.tol.atol)
+                plain(tol.relative),
+                plain(tol.absolute),
+                plain(start.relative),
+                plain(start.absolute),
+                plain(settings.tol.relative),
+                plain(settings.tol.absolute)
             )
         };
         let r = solve::solve(problem, t0, y0, &Settings { tol, max_steps: settings.max_steps.saturating_mul(4), ..base_settings.clone() })?;
@@ -179,10 +179,10 @@ pub fn check(
             first.iter().find(|(c, _)| c == k).is_some_and(|(_, c)| (v - c).abs() < 0.01 * implied(&start, k, *v, span))
         });
         let far = tight(1e4);
-        if still && far.rtol < tol.rtol {
+        if still && far.relative < tol.relative {
             let r2 = solve::solve(problem, t0, y0, &Settings { tol: far, max_steps: settings.max_steps.saturating_mul(16), ..base_settings.clone() })?;
             work += r2.stats.rhs_evals;
-            text = format!("{text}, and again 10 000 times tighter (rtol {})", plain(far.rtol));
+            text = format!("{text}, and again 10 000 times tighter (relative {})", plain(far.relative));
             checks.push(r2);
         } else {
             checks.push(r);
@@ -222,7 +222,7 @@ pub fn check(
         let negligible = !k.kind.is_time()
             && error.is_some_and(|e| e > 0.0)
             && size > 0.0
-            && (v.abs() <= 1e-6 * size || (!fixed && v.abs() <= 1e3 * settings.tol.atol && size > 1e3 * settings.tol.atol));
+            && (v.abs() <= 1e-6 * size || (!fixed && v.abs() <= 1e3 * settings.tol.absolute && size > 1e3 * settings.tol.absolute));
         quantities.push(Quantity {
             kind: k.kind,
             name: k.name.clone(),
@@ -352,9 +352,9 @@ fn headline(qs: &[Quantity], disagree: &[String], unsettled: &[String], pitfalls
 /// The explicit method of the cross check for a tolerance.
 fn explicit_for(rtol: f64) -> &'static str {
     if rtol < 1e-8 {
-        "dp853"
+        "dormand-prince-8"
     } else {
-        "dp54"
+        "dormand-prince-5"
     }
 }
 
@@ -374,7 +374,7 @@ fn cross_check(
 ) -> Result<(CrossCheck, u64), SolveError> {
     let fixed = settings.step.is_some() || solve::method(&settings.method).is_some_and(|m| !m.adaptive);
     let tol = if fixed { solve::Tolerance::default() } else { settings.tol };
-    let ex_id = explicit_for(tol.rtol);
+    let ex_id = explicit_for(tol.relative);
     let common = Settings { step: None, at: None, tol, max_steps: settings.max_steps.min(200_000), ..settings.clone() };
     let ex = solve::solve(problem, t0, y0, &Settings { method: ex_id.into(), ..common.clone() })?;
     let mut work = ex.stats.rhs_evals;
@@ -382,7 +382,7 @@ fn cross_check(
         let c = CrossCheck {
             explicit: ex_id.into(),
             implicit: String::new(),
-            rtol: tol.rtol,
+            rtol: tol.relative,
             explicit_steps: Some(ex.stats.steps),
             implicit_steps: None,
             agreement: vec![],
@@ -412,30 +412,30 @@ fn cross_check(
     let name = |id: &str| solve::method(id).map_or(id.to_string(), |m| m.name.to_string());
     let sentence = match (ok(&ex), ok(&im), least) {
         (false, _, _) => format!(
-            "The explicit method {} could not finish at rtol {} ({}); the implicit method {} {}.",
+            "The explicit method {} could not finish at a relative tolerance of {} ({}); the implicit method {} {}.",
             name(ex_id),
-            with_digits(tol.rtol, 1),
+            with_digits(tol.relative, 1),
             match &ex.status { Status::Failed(e) => e.to_string(), _ => String::new() },
             name(im_info.id),
             if ok(&im) { format!("did, in {} steps", im.stats.steps) } else { "failed too".into() }
         ),
         (_, false, _) => format!("The implicit method {} could not finish; only the explicit one did.", name(im_info.id)),
         (_, _, Some(0)) => format!(
-            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} do not agree even to one digit on {}: treat those results as unsettled and tighten the tolerances.",
+            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at a relative tolerance of {} do not agree even to one digit on {}: treat those results as unsettled and tighten the tolerances.",
             name(ex_id),
             ex.stats.steps,
             name(im_info.id),
             im.stats.steps,
-            with_digits(tol.rtol, 1),
+            with_digits(tol.relative, 1),
             list(&agreement.iter().filter(|a| a.1 == 0).map(|a| a.0.clone()).collect::<Vec<_>>())
         ),
         (_, _, Some(d)) => format!(
-            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at rtol {} agree to at least {} digit{} on every value and event time.",
+            "An explicit method ({}, {} steps) and an implicit one ({}, {} steps) at a relative tolerance of {} agree to at least {} digit{} on every value and event time.",
             name(ex_id),
             ex.stats.steps,
             name(im_info.id),
             im.stats.steps,
-            with_digits(tol.rtol, 1),
+            with_digits(tol.relative, 1),
             d,
             if d == 1 { "" } else { "s" }
         ),
@@ -444,7 +444,7 @@ fn cross_check(
     let c = CrossCheck {
         explicit: ex_id.into(),
         implicit: im_info.id.into(),
-        rtol: tol.rtol,
+        rtol: tol.relative,
         explicit_steps: ok(&ex).then_some(ex.stats.steps),
         implicit_steps: ok(&im).then_some(im.stats.steps),
         agreement,

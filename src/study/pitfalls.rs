@@ -143,8 +143,8 @@ pub fn value_scale(run: &Run, y0: &[f64]) -> f64 {
 pub fn sane(tol: Tolerance, scale: f64) -> Tolerance {
     let d = Tolerance::default();
     Tolerance {
-        rtol: if tol.rtol > SANE_FRACTION { d.rtol } else { tol.rtol },
-        atol: if scale > 0.0 && tol.atol > SANE_FRACTION * scale { d.atol } else { tol.atol },
+        relative: if tol.relative > SANE_FRACTION { d.relative } else { tol.relative },
+        absolute: if scale > 0.0 && tol.absolute > SANE_FRACTION * scale { d.absolute } else { tol.absolute },
     }
 }
 
@@ -170,13 +170,13 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
     if held == tol {
         return None;
     }
-    let (r, a) = (held.rtol != tol.rtol, held.atol != tol.atol);
+    let (r, a) = (held.relative != tol.relative, held.absolute != tol.absolute);
     let what = match (r, a) {
-        (true, true) => format!("rtol {} and atol {} allow", typed(tol.rtol), typed(tol.atol)),
-        (true, false) => format!("rtol {} allows", typed(tol.rtol)),
-        _ => format!("atol {} allows", typed(tol.atol)),
+        (true, true) => format!("rtol {} and atol {} allow", typed(tol.relative), typed(tol.absolute)),
+        (true, false) => format!("rtol {} allows", typed(tol.relative)),
+        _ => format!("atol {} allows", typed(tol.absolute)),
     };
-    let allowed = tol.rtol * scale + tol.atol;
+    let allowed = tol.relative * scale + tol.absolute;
     // The least trusted final value, to show what the settings did.
     let example = cx
         .quantities
@@ -193,15 +193,15 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
         });
     let mut fix = Vec::new();
     if r {
-        fix.push(format!("rtol to {} (the default) or tighter", typed(held.rtol)));
+        fix.push(format!("rtol to {} (the default) or tighter", typed(held.relative)));
     }
     if a {
         // A power of ten above 1 is most likely a lost minus sign.
-        let e = tol.atol.log10();
+        let e = tol.absolute.log10();
         fix.push(if e >= 1.0 && e.fract() == 0.0 {
-            format!("atol to {}: {} looks like {} with its minus sign lost", typed(1.0 / tol.atol), typed(tol.atol), typed(1.0 / tol.atol))
+            format!("atol to {}: {} looks like {} with its minus sign lost", typed(1.0 / tol.absolute), typed(tol.absolute), typed(1.0 / tol.absolute))
         } else {
-            format!("atol well below the smallest value that matters (the default is {})", typed(held.atol))
+            format!("atol well below the smallest value that matters (the default is {})", typed(held.absolute))
         });
     }
     Some(pit(
@@ -213,8 +213,8 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
             with_digits(allowed, 2),
             with_digits(scale, 3),
             fix.join(", and "),
-            typed(held.rtol),
-            typed(held.atol),
+            typed(held.relative),
+            typed(held.absolute),
         ),
         (scale > 0.0).then(|| allowed / scale),
         None,
@@ -527,7 +527,7 @@ pub fn stiff(cx: &mut Context) -> Option<Pitfall> {
 /// Tolerance too loose for the digits shown.
 pub fn loose_tolerance(cx: &mut Context) -> Option<Pitfall> {
     let (settings, opts, fixed) = (cx.settings, cx.opts, cx.fixed());
-    let atol = settings.tol.atol;
+    let atol = settings.tol.absolute;
     let weak: Vec<&Quantity> = cx
         .quantities
         .iter()
@@ -545,7 +545,7 @@ pub fn loose_tolerance(cx: &mut Context) -> Option<Pitfall> {
         format!(
             "Tighten rtol to {} (it is {}), or read only {} digits.",
             with_digits(10f64.powi(-(opts.shown_digits as i32 + 2)), 1),
-            plain(settings.tol.rtol),
+            plain(settings.tol.relative),
             w.digits
         )
     };

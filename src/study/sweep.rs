@@ -96,13 +96,13 @@ pub fn sweep(
         problem,
         t0,
         y0,
-        &Settings { method: "dp853".into(), step: None, tol: Tolerance { rtol: 1e-12, atol: 1e-14 }, ..base.clone() },
+        &Settings { method: "dormand-prince-8".into(), step: None, tol: Tolerance { relative: 1e-12, absolute: 1e-14 }, ..base.clone() },
     )?;
     work += reference.stats.rhs_evals;
     let ref_ok = !matches!(reference.status, Status::Failed(_));
     let ref_sum = if ref_ok { summary(problem, &reference) } else { Vec::new() };
     let reference_text = if ref_ok {
-        "errors against a Dormand–Prince 8(5,3) run at rtol 1e-12".to_string()
+        "errors against a Dormand–Prince 8(5,3) run at relative tolerance 1e-12".to_string()
     } else {
         "errors against the Richardson limit (the tight reference run failed)".to_string()
     };

@@ -28,7 +28,7 @@ async function typeSheet(page, text) {
   await page.waitForTimeout(450);
 }
 
-function fragment(kept, v = 1) {
+function fragment(kept, v = 2) {
   return "m=" + deflateRawSync(Buffer.from(JSON.stringify({ v, ...kept }))).toString("base64url");
 }
 
@@ -147,12 +147,13 @@ test("share link and file round trips are exact, bit for bit, for awkward number
   const { page } = await openPage(context, server.url);
   await ready(page);
   const sheet = "# awkward numbers\nk = 0.30000000000000004\ntiny = 5e-324\nbig = 1.7976931348623157e308\ndy/dt = -k*y + tiny*big*0\ny(0) = 0.1\n";
-  const settings = { to: 12.345678901234567, method: "dp54", rtol: 1.0000000000000002e-7, atol: 3.0000000000000004e-13 };
+  const settings = { to: 12.345678901234567, method: "dormand-prince-5", tolerance: { relative: 1.0000000000000002e-7, absolute: 3.0000000000000004e-13 } };
+  const want = { to: settings.to, "tol-relative": settings.tolerance.relative, "tol-absolute": settings.tolerance.absolute };
   await page.evaluate((h) => { location.hash = h; }, fragment({ sheet, settings }));
   await page.waitForFunction((s) => document.getElementById("sheet").value === s, sheet);
-  const read = () => page.evaluate(() => Object.fromEntries(["to", "rtol", "atol"].map((id) => [id, Number(document.getElementById(id).value)])));
+  const read = () => page.evaluate(() => Object.fromEntries(["to", "tol-relative", "tol-absolute"].map((id) => [id, Number(document.getElementById(id).value)])));
   const shown = await read();
-  for (const k of ["to", "rtol", "atol"]) assert.ok(Object.is(shown[k], settings[k]), `${k}: ${shown[k]} vs ${settings[k]}`);
+  for (const k of Object.keys(want)) assert.ok(Object.is(shown[k], want[k]), `${k}: ${shown[k]} vs ${want[k]}`);
   // The page's own link, opened again, gives the same sheet and numbers.
   // The link is compressed asynchronously: wait for the dialog to hold it.
   const url = await dialogText(page, "#share");
@@ -160,9 +161,51 @@ test("share link and file round trips are exact, bit for bit, for awkward number
   await again.goto(url);
   await ready(again);
   assert.equal(await again.inputValue("#sheet"), sheet);
-  const shown2 = await again.evaluate(() => Object.fromEntries(["to", "rtol", "atol"].map((id) => [id, Number(document.getElementById(id).value)])));
-  for (const k of ["to", "rtol", "atol"]) assert.ok(Object.is(shown2[k], settings[k]), `${k} after the page's own link`);
+  const shown2 = await again.evaluate(() => Object.fromEntries(["to", "tol-relative", "tol-absolute"].map((id) => [id, Number(document.getElementById(id).value)])));
+  for (const k of Object.keys(want)) assert.ok(Object.is(shown2[k], want[k]), `${k} after the page's own link`);
   await again.close();
+  await page.close();
+});
+
+test("version-1 links, files and autosaves open with their old names mapped to today's", async () => {
+  // Version 1 wrote `rtol`/`atol` and the old method ids (dp54, radau5, …).
+  const v1 = { sheet: COOLING, settings: { to: 77, method: "radau5", rtol: 2e-7, atol: 3e-11 } };
+  const shown = (page) => page.evaluate(() => ({
+    to: Number(document.getElementById("to").value), method: document.getElementById("method").value,
+    relative: Number(document.getElementById("tol-relative").value), absolute: Number(document.getElementById("tol-absolute").value) }));
+  const want = { to: 77, method: "radau-iia-5", relative: 2e-7, absolute: 3e-11 };
+  const { page } = await openPage(context, server.url);
+  await ready(page);
+  await page.evaluate((h) => { location.hash = h; }, fragment(v1, 1));
+  await page.waitForFunction(() => document.getElementById("to").value === "77");
+  assert.deepEqual(await shown(page), want, "link");
+  await page.waitForFunction(() => document.querySelector("#summary").textContent.includes("t = 77"));
+  // A file of version 1, with each old id.
+  const dir = mkdtempSync(join(tmpdir(), "ratebook-v1-"));
+  for (const [old, id] of [["dp54", "dormand-prince-5"], ["dp853", "dormand-prince-8"], ["bs32", "bogacki-shampine-3"], ["rodas4", "rosenbrock-4"], ["beuler", "backward-euler"]]) {
+    const f = join(dir, `${old}.json`);
+    writeFileSync(f, JSON.stringify({ format: "ratebook-model", version: 1, ratebook: "0.1.0", sheet: COOLING, settings: { ...v1.settings, method: old, step: 0.5 } }));
+    await page.setInputFiles("#open-input", f);
+    await page.waitForFunction((m) => document.getElementById("method").value === m, id);
+  }
+  // A version-1 autosave is read at start and saved again as version 2.
+  const fresh = await context.newPage();
+  await fresh.addInitScript((kept) => {
+    if (!sessionStorage.getItem("seeded")) {
+      localStorage.clear();
+      localStorage.setItem("ratebook.autosave.v1", JSON.stringify(kept));
+      sessionStorage.setItem("seeded", "1");
+    }
+  }, { ...v1, sheet: COOLING + "# autosaved\n" });
+  await fresh.goto(server.url);
+  await ready(fresh);
+  assert.equal(await fresh.inputValue("#sheet"), COOLING + "# autosaved\n");
+  assert.deepEqual(await shown(fresh), want, "autosave");
+  await typeSheet(fresh, COOLING + "# autosaved again\n");
+  const saved = await fresh.evaluate(() => JSON.parse(localStorage.getItem("ratebook.autosave.v2")));
+  assert.deepEqual(saved.settings.tolerance, { relative: 2e-7, absolute: 3e-11 });
+  assert.equal(saved.settings.method, "radau-iia-5");
+  await fresh.close();
   await page.close();
 });
 
@@ -188,7 +231,7 @@ test("malformed, oversized, wrong-version and truncated links and files are refu
   const dir = mkdtempSync(join(tmpdir(), "ratebook-files-"));
   const fileGood = JSON.stringify({ format: "ratebook-model", version: 1, sheet: COOLING, settings: { to: 50 } });
   const files = [
-    [JSON.stringify({ format: "ratebook-model", version: 2, sheet: COOLING }), /version/],
+    [JSON.stringify({ format: "ratebook-model", version: 3, sheet: COOLING }), /version 3; this page reads versions 1 to 2/],
     [fileGood.slice(0, fileGood.length - 9), /not JSON|damaged|cut short/],
     [" ".repeat((1 << 20) + 1), /over 1 MB/],
     [JSON.stringify({ format: "something-else", version: 1, sheet: COOLING }), /not a ratebook model/],

@@ -44,7 +44,7 @@ test("the summary matches the Node API on the same sheet and settings", async ()
   await ready(page);
   const sheet = await page.inputValue("#sheet");
   const settings = await page.evaluate(() => ({ to: Number(document.getElementById("to").value), method: document.getElementById("method").value,
-    rtol: Number(document.getElementById("rtol").value), atol: Number(document.getElementById("atol").value) }));
+    tolerance: { relative: Number(document.getElementById("tol-relative").value), absolute: Number(document.getElementById("tol-absolute").value) } }));
   const run = nodeRun(sheet, settings);
   const shown = await summaryValues(page);
   for (const name of run.states) assert.equal(shown[name], run.values[name].at(-1), name);
@@ -107,7 +107,8 @@ test("save to a file and open it again restores identical results", async () => 
   const text = await download(page, "#save-file");
   const saved = JSON.parse(text);
   assert.equal(saved.format, "ratebook-model");
-  assert.equal(saved.version, 1);
+  assert.equal(saved.version, 2);
+  assert.deepEqual(Object.keys(saved.settings.tolerance), ["relative", "absolute"]);
   assert.equal(saved.settings.to, 900);
   const dir = mkdtempSync(join(tmpdir(), "ratebook-file-"));
   writeFileSync(join(dir, "m.json"), text);

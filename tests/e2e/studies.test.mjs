@@ -39,7 +39,7 @@ test("the accuracy check runs in the worker: the page answers meanwhile, and can
   const { page, errors } = await openPage(context, server.url);
   await ready(page);
   await setSheet(page, RINGING);
-  await settings(page, { to: 3000, rtol: "1e-10", atol: "1e-12" });
+  await settings(page, { to: 3000, "tol-relative": "1e-10", "tol-absolute": "1e-12" });
   await page.click("#tab-accuracy");
   await page.waitForSelector("#accuracy-checking");
   await page.waitForSelector("#busy:not([hidden])");
@@ -68,7 +68,7 @@ test("the convergence study shows a determinate progress bar in the worker and t
   const { page, errors } = await openPage(context, server.url);
   await ready(page);
   await setSheet(page, RINGING);
-  await settings(page, { to: 60, rtol: "1e-6", atol: "1e-9" });
+  await settings(page, { to: 60, "tol-relative": "1e-6", "tol-absolute": "1e-9" });
   await page.click("#tab-accuracy");
   await page.click("#accuracy-convergence summary");
   await page.waitForSelector("#conv-run");
@@ -89,7 +89,7 @@ test("the convergence study shows a determinate progress bar in the worker and t
   assert.equal(await page.isHidden("#busy"), true);
   const shown = await page.$$eval("#conv-table tr", (r) => r.slice(1).map((tr) => tr.children[4].textContent));
   initSync({ module: (await import("node:fs")).readFileSync(new URL("../../www/pkg/ratebook_bg.wasm", import.meta.url)) });
-  const node = convergenceStudy(RINGING, { to: 60, rtol: 1e-6, atol: 1e-9, method: "euler", step: 0.001, methods: ["euler", "heun", "rk4"] });
+  const node = convergenceStudy(RINGING, { to: 60, tolerance: { relative: 1e-6, absolute: 1e-9 }, method: "euler", step: 0.001, methods: ["euler", "heun", "rk4"] });
   assert.equal(shown.length, node.lines.length);
   const fmt = (v) => String(Number(v.toPrecision(10)));
   shown.forEach((cell, i) => assert.ok(cell.startsWith(fmt(node.lines[i].extrapolated).slice(0, 6)), `${cell} vs ${node.lines[i].extrapolated}`));

@@ -2,7 +2,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
-import { initSync, solve, compareMethods, version } from "../../www/pkg/ratebook.js";
+import { initSync, solve, version, checkAccuracy, convergenceStudy, compareMethods, fieldView } from "../../www/pkg/ratebook.js";
 
 initSync({ module: readFileSync(new URL("../../www/pkg/ratebook_bg.wasm", import.meta.url)) });
 
@@ -64,4 +64,19 @@ test("settings of the wrong kind are refused in plain words that name the settin
   refused({ to: 1, at: [0, "x"] }, /^settings: `at` must hold a number in each entry$/);
   refused({ to: 1, params: { k: "x" } }, /^settings: `params` must hold a number in each entry$/);
   assert.throws(() => compareMethods(sheet, { to: 1 }, 7), /^Error: the comparison must be an object/);
+});
+
+test("a misspelt or former setting name is an Error naming the one meant", () => {
+  const COOL = "T' = -0.0021*(T - 22)\nT(0) = 180\n";
+  assert.throws(() => solve(COOL, { to: 1, rtoll: 1e-6 }), /unknown setting `rtoll`; did you mean `tolerance.relative`\?/);
+  assert.throws(() => solve(COOL, { to: 1, tolerance: { relativ: 1e-6 } }), /unknown setting `tolerance.relativ`; did you mean `tolerance.relative`\?/);
+  assert.throws(() => solve(COOL, { to: 1, rtol: 1e-6 }), /the setting `rtol` has a new name: `tolerance.relative`/);
+  assert.throws(() => solve(COOL, { to: 1, maxSteps: 10 }), /the setting `maxSteps` has a new name: `stepLimit`/);
+  assert.throws(() => solve(COOL, { to: 1, method: "dp54" }), /the method id `dp54` has a new name: `dormand-prince-5`/);
+  // The same check runs under the other calls that take run settings.
+  for (const call of [checkAccuracy, convergenceStudy, compareMethods, fieldView]) {
+    assert.throws(() => call(COOL, { to: 1, atoll: 1e-9 }), /unknown setting `atoll`; did you mean `tolerance.absolute`\?/, call.name);
+  }
+  const run = solve(COOL, { to: 1, tolerance: { relative: 1e-8, absolute: 1e-10 }, stepLimit: 100, startStep: 0.1, largestStep: 0.5 });
+  assert.equal(run.status, "finished");
 });

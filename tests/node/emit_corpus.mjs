@@ -16,7 +16,7 @@ export function rng(seed) {
 
 const NUMS = ["2", "0.5", "3.7", "1.5e-3", "10", "1", "0.25", "7e1", "0", "pi", "e", "k", "c2"];
 const FUNCS1 = ["sin", "cos", "tan", "exp", "ln", "log", "log10", "sqrt", "abs", "asin", "acos", "atan",
-  "sinh", "cosh", "tanh", "asinh", "acosh", "atanh", "floor", "ceil", "round", "signum", "sign", "step"];
+  "sinh", "cosh", "tanh", "asinh", "acosh", "atanh", "floor", "ceil", "round", "signum", "sign", "heaviside"];
 const FUNCS2 = ["atan2", "pow", "hypot"];
 const POWERS = ["2", "3", "4", "0.5", "1.5", "-1", "-2", "-0.5", "2.5", "0", "1", "1/3"];
 

@@ -52,12 +52,12 @@ test("to = 1e300 ends within the caps, forward and backward", () => {
   assert.equal(r.status, "failed");
 });
 
-test("rtol = 0 runs on atol alone; both zero is refused", () => {
-  const r = bounded(solve(DECAY, { to: 10, rtol: 0, atol: 1e-9 }));
+test("a relative tolerance of 0 runs on the absolute one alone; both zero is refused", () => {
+  const r = bounded(solve(DECAY, { to: 10, tolerance: { relative: 0, absolute: 1e-9 } }));
   assert.equal(r.status, "finished");
   // Analytic: y(10) = 2·exp(-3).
   assert.ok(Math.abs(r.values.y.at(-1) - 2 * Math.exp(-3)) < 1e-7);
-  refused(DECAY, { to: 10, rtol: 0, atol: 0 }, /both be zero/);
+  refused(DECAY, { to: 10, tolerance: { relative: 0, absolute: 0 } }, /both be zero/);
 });
 
 test("ten million output times are refused with the limit", () => {
@@ -65,21 +65,23 @@ test("ten million output times are refused with the limit", () => {
   const at = new Array(n);
   for (let i = 0; i < n; i++) at[i] = i / n;
   refused(DECAY, { to: 1, at }, /10000000 output times/);
-  refused(DECAY, { to: 1, at, maxOutput: 1e300 }, /output/);
+  refused(DECAY, { to: 1, at, outputLimit: 1e300 }, /output/);
 });
 
 test("enormous caps are refused rather than obeyed", () => {
-  refused(SWING, { to: 1e300, maxSteps: 1e300 }, /max_steps/);
-  refused(SWING, { to: 1, maxOutput: 1e300 }, /max_output/);
-  refused(SWING, { to: 1, maxEvents: 1e300 }, /max_events/);
+  refused(SWING, { to: 1e300, stepLimit: 1e300 }, /`stepLimit`/);
+  refused(SWING, { to: 1, outputLimit: 1e300 }, /`outputLimit`/);
+  refused(SWING, { to: 1, eventLimit: 1e300 }, /`eventLimit`/);
 });
 
 test("NaN, infinite and negative values anywhere are refused", () => {
   for (const v of [NaN, Infinity, -Infinity, -1, -1e-300]) {
     refused(DECAY, { to: Number.isFinite(v) ? NaN : v });
-    for (const key of ["rtol", "atol", "firstStep", "maxStep", "maxSteps", "maxOutput", "maxEvents"]) {
-      refused(DECAY, { to: 1, [key]: v });
+    for (const key of ["startStep", "largestStep", "stepLimit", "outputLimit", "eventLimit"]) {
+      refused(DECAY, { to: 1, [key]: v }, new RegExp(`\`${key}\``));
     }
+    refused(DECAY, { to: 1, tolerance: { relative: v } }, /`tolerance.relative`/);
+    refused(DECAY, { to: 1, tolerance: { absolute: v } }, /`tolerance.absolute`/);
     refused(DECAY, { to: 1, method: "rk4", step: v });
     refused(DECAY, { to: 1, at: [0, v, 1] });
   }
@@ -100,9 +102,11 @@ test("settings of the wrong shape are refused, not obeyed", () => {
   refused(DECAY, { to: 1, method: "<img src=x onerror=alert(1)>" }, /unknown method/);
   refused(DECAY, 42);
   refused(DECAY, {});
-  // Unknown keys, including __proto__, are ignored.
-  const r = bounded(solve(DECAY, JSON.parse('{"to": 1, "__proto__": {"maxSteps": 1}, "bogus": true}')));
-  assert.equal(r.status, "finished");
+  refused(DECAY, { to: 1, tolerance: 1e-6 }, /relative, absolute/);
+  // Unknown keys, __proto__ among them, are refused by name.
+  refused(DECAY, JSON.parse('{"to": 1, "__proto__": {"stepLimit": 1}}'), /unknown setting `__proto__`/);
+  refused(DECAY, { to: 1, bogus: true }, /unknown setting `bogus`; the settings are to, method, step/);
+  assert.equal(bounded(solve(DECAY, { to: 1 })).status, "finished");
 });
 
 test("sheets of the wrong type or size give an Error", () => {
@@ -161,7 +165,7 @@ test("every export refuses arguments of the wrong type with an Error, and the so
 
 test("the accuracy check and the convergence study report progress: unknown total, then an estimate", () => {
   const seen = [];
-  checkAccuracy(DECAY, { to: 400, rtol: 1e-11 }, (done, total) => seen.push([done, total]));
+  checkAccuracy(DECAY, { to: 400, tolerance: { relative: 1e-11 } }, (done, total) => seen.push([done, total]));
   assert.ok(seen.length >= 1);
   assert.ok(seen.slice(0, -1).every(([, total]) => total === 0), "the check cannot tell its total beforehand");
   assert.ok(seen.at(-1)[0] === seen.at(-1)[1] && seen.at(-1)[1] > 0, "the last report is complete");
@@ -179,7 +183,7 @@ test("the accuracy check and the convergence study report progress: unknown tota
 test("200 states solve within the caps", () => {
   let sheet = "k = 2\n";
   for (let i = 0; i < 200; i++) sheet += `du${i}/dt = k*(${i ? `u${i - 1}` : "1"} - u${i})\nu${i}(0) = 0\n`;
-  const r = bounded(solve(sheet, { to: 10, maxSteps: 20000 }));
+  const r = bounded(solve(sheet, { to: 10, stepLimit: 20000 }));
   assert.equal(r.status, "finished");
   assert.equal(r.states.length, 200);
   // Stored values stay within 10 million (points × columns).
@@ -187,11 +191,11 @@ test("200 states solve within the caps", () => {
 });
 
 test("output is decimated with a note; events are capped with a warning", () => {
-  const r = bounded(solve(SWING, { to: 100, method: "euler", step: 1e-4, maxOutput: 1000 }));
+  const r = bounded(solve(SWING, { to: 100, method: "euler", step: 1e-4, outputLimit: 1000 }));
   assert.ok(r.t.length <= 1000);
   assert.equal(r.t.at(-1), 100);
   assert.ok(r.diagnostics.some((d) => d.code === "decimated"));
-  const e = bounded(solve(SWING, { to: 1000, maxEvents: 3 }));
+  const e = bounded(solve(SWING, { to: 1000, eventLimit: 3 }));
   assert.equal(e.events.length, 3);
   assert.ok(e.diagnostics.some((d) => d.code === "max-events"));
 });

@@ -9,7 +9,7 @@ pub(super) const NEWTON_MAX_ITER: usize = 7;
 
 /// The Newton convergence bound `κ` for a tolerance (see the module doc).
 pub(super) fn newton_kappa(tol: &Tolerance) -> f64 {
-    let rtol = tol.rtol.max(1e-14);
+    let rtol = tol.relative.max(1e-14);
     (10.0 * f64::EPSILON / rtol).max(0.03f64.min(rtol.sqrt()))
 }
 

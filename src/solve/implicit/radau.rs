@@ -41,7 +41,7 @@ const fn s6(p: i64, q: i64, r: i64) -> Sqrt6Number {
     Sqrt6Number { p, q, r }
 }
 
-/// The 3-stage Radau IIA collocation method, `radau5`, as data.
+/// The 3-stage Radau IIA collocation method, `radau-iia-5`, as data.
 #[derive(Debug)]
 pub struct RadauTableau {
     /// Stable method id.
@@ -66,7 +66,7 @@ pub struct RadauTableau {
     pub reference: &'static str,
 }
 
-/// Radau IIA of order 5, `radau5`: 3 implicit stages, L-stable, stiffly
+/// Radau IIA of order 5, `radau-iia-5`: 3 implicit stages, L-stable, stiffly
 /// accurate, stage order 3; dense output is the collocation polynomial
 /// (order 3). Embedded error estimate of order 3 with the stiff filter
 /// `(I - γ0 hJ)^{-1}`. Use it for stiff problems at tight tolerances (rtol
@@ -92,7 +92,7 @@ pub struct RadauTableau {
 // The digits as published, kept whole.
 #[allow(clippy::excessive_precision)]
 pub static RADAU5: RadauTableau = RadauTableau {
-    id: "radau5",
+    id: "radau-iia-5",
     order: 5,
     embedded_order: 3,
     a: [
@@ -629,7 +629,7 @@ mod tests {
         let mut p = nonlinear_exact();
         let y0 = exact_solution(0.0);
         // Newton stops within κ = 1e-4 of the weights (~2e-8): about 2e-12.
-        let tol = Tolerance { rtol: 1e-8, atol: 1e-8 };
+        let tol = Tolerance { relative: 1e-8, absolute: 1e-8 };
         let mut st = Radau::new(2);
         let mut stats = Stats::default();
         let mut y1 = [0.0; 2];

@@ -29,13 +29,13 @@ impl ThetaMethod {
     }
 }
 
-/// Backward (implicit) Euler, `beuler`: order 1, one stage, L-stable. Fixed
+/// Backward (implicit) Euler, `backward-euler`: order 1, one stage, L-stable. Fixed
 /// step with the user's `h`; for comparison views, to show a method that
 /// stays stable at any `h` on a stiff decay. Dense output is linear.
 /// Source: Hairer & Wanner, *Solving ODEs II*, Sec. IV.3 (implicit Euler;
 /// section from memory).
 pub static BACKWARD_EULER: ThetaMethod =
-    ThetaMethod { id: "beuler", theta: 1.0, order: 1, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (implicit Euler)" };
+    ThetaMethod { id: "backward-euler", theta: 1.0, order: 1, reference: "Hairer & Wanner, Solving ODEs II, Sec. IV.3 (implicit Euler)" };
 
 /// Trapezoidal rule, `trapezoid`: order 2, A-stable but not L-stable (stiff
 /// components are not damped, they flip sign each step). Fixed step with the

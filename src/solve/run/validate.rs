@@ -22,8 +22,10 @@ pub fn invalid(field: &'static str, reason: impl Into<String>) -> SolveError {
     SolveError::InvalidSettings { field, reason: reason.into() }
 }
 
-/// Check the settings and inputs of a run: the method, its tolerances (rtol
-/// raised to 1e-14 with a note), and the caps. Returns the method, the
+/// Check the settings and inputs of a run: the method, its tolerances (a
+/// relative tolerance below 1e-14 raised to it, with a note), and the caps.
+/// Fields are named as the JS API names them (`tolerance.relative`,
+/// `stepLimit`, …). Returns the method, the
 /// tolerances to run with, the notes, and the output cap lowered to keep the
 /// stored values within [`CEILING_VALUES`].
 pub(super) fn validate(
@@ -58,42 +60,45 @@ pub(super) fn validate(
     }
     let mut notes = Vec::new();
     let mut tol = s.tol;
-    if !(tol.rtol.is_finite() && tol.rtol >= 0.0) {
-        return Err(invalid("tol.rtol", "rtol must be a finite number ≥ 0"));
+    if !(tol.relative.is_finite() && tol.relative >= 0.0) {
+        return Err(invalid("tolerance.relative", "the relative tolerance must be a finite number ≥ 0"));
     }
-    if !(tol.atol.is_finite() && tol.atol >= 0.0) {
-        return Err(invalid("tol.atol", "atol must be a finite number ≥ 0"));
+    if !(tol.absolute.is_finite() && tol.absolute >= 0.0) {
+        return Err(invalid("tolerance.absolute", "the absolute tolerance must be a finite number ≥ 0"));
     }
-    if tol.rtol == 0.0 && tol.atol == 0.0 {
-        return Err(invalid("tol", "rtol and atol cannot both be zero"));
+    if tol.relative == 0.0 && tol.absolute == 0.0 {
+        return Err(invalid("tolerance", "the relative and absolute tolerances cannot both be zero"));
     }
-    if tol.rtol > 0.0 && tol.rtol < 1e-14 {
-        tol.rtol = 1e-14;
+    if tol.relative > 0.0 && tol.relative < 1e-14 {
         notes.push(Diagnostic {
             level: Level::Info,
             code: "tolerance-floor",
-            message: "rtol was raised to 1e-14: double precision cannot do better".to_string(),
+            message: format!(
+                "the relative tolerance {:e} asks for more digits than double precision holds: rounding alone leaves an error of about 1e-16 on every operation, and it adds up over the steps. The run used 1e-14, the tightest that still means something; set 1e-14 or looser to run as asked",
+                tol.relative
+            ),
             t: None,
         });
+        tol.relative = 1e-14;
     }
     if s.max_steps < 1 {
-        return Err(invalid("max_steps", "the step limit must be at least 1"));
+        return Err(invalid("stepLimit", "the step limit must be at least 1"));
     }
     if s.max_steps > CEILING_STEPS {
-        return Err(invalid("max_steps", format!("the step limit can be at most {CEILING_STEPS}")));
+        return Err(invalid("stepLimit", format!("the step limit can be at most {CEILING_STEPS}")));
     }
     if s.max_output < 2 {
-        return Err(invalid("max_output", "at least 2 output points are needed"));
+        return Err(invalid("outputLimit", "at least 2 output points are needed"));
     }
     let columns = (problem.dim() + problem.helper_names().len()).max(1);
     let output_ceiling = (CEILING_VALUES / columns).clamp(2, CEILING_OUTPUT);
     if s.max_output > CEILING_OUTPUT {
-        return Err(invalid("max_output", format!("at most {CEILING_OUTPUT} output points can be kept")));
+        return Err(invalid("outputLimit", format!("at most {CEILING_OUTPUT} output points can be kept")));
     }
     if s.max_events > CEILING_EVENTS {
-        return Err(invalid("max_events", format!("at most {CEILING_EVENTS} event crossings can be recorded")));
+        return Err(invalid("eventLimit", format!("at most {CEILING_EVENTS} event crossings can be recorded")));
     }
-    for (field, v) in [("first_step", s.first_step), ("max_step", s.max_step)] {
+    for (field, v) in [("startStep", s.first_step), ("largestStep", s.max_step)] {
         if let Some(h) = v {
             if !(h.is_finite() && h > 0.0) {
                 return Err(invalid(field, "must be a positive finite number"));

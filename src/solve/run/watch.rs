@@ -87,7 +87,7 @@ impl Stiffness {
                 level: Level::Warning,
                 code: "stiff",
                 message: format!(
-                    "the problem looks stiff from t ≈ {}: {} is taking steps limited by stability, not accuracy (h·|λ| ≈ {} in {} steps running). A stiff method (one marked implicit in the method list, or `auto`) will need far fewer steps",
+                    "from t ≈ {} on, {} took steps sized by its stability limit, not by the tolerance (h·|λ| ≈ {} on {} recent steps). The system is stiff there: an explicit method needs a great many small steps on it, and the extra steps buy no accuracy. Choose an implicit method (Rosenbrock 4(3) or Radau IIA in the method list) or `auto`, which switches to one by itself",
                     num(t),
                     method,
                     num(hl),
