@@ -27,10 +27,7 @@ for (let i = 1; i < 200; i++) CHAIN += `dx${i}/dt = ${1 + 5 * i}*(x${i - 1} - x$
 const BOMB = "m=" + deflateRawSync(Buffer.concat([Buffer.from('{"v":1,"sheet":"'), Buffer.alloc(200 << 20, 0x20), Buffer.from('"}')]), { level: 9 }).toString("base64url");
 
 const CASES = [
-  // The plot's tick loop never ends on this span until the draw fix lands
-  // (issue 22, finding 1); reported as a known failure until then.
-  { name: "two constant states at ±1e308 (the plot's span overflows)", sheet: "a' = 0\na(0) = 1e308\nb' = 0\nb(0) = -1e308\n",
-    todo: "frozen in the plot's tick loop until the draw fix for finding 1 lands" },
+  { name: "two constant states at ±1e308 (the plot's span overflows)", sheet: "a' = 0\na(0) = 1e308\nb' = 0\nb(0) = -1e308\n" },
   { name: "a parameter of 1e308 on a slider", sheet: "k = 1e308\ny' = -y + k*0\ny(0) = 1\n" },
   { name: "a state of 1e308 that grows", sheet: "y' = y\ny(0) = 1e308\n" },
   { name: "End = 1e300", sheet: "y' = -y\ny(0) = 1\n", settings: { to: "1e300" } },
