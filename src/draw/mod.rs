@@ -29,6 +29,8 @@ pub mod study;
 pub mod style;
 pub mod svg;
 pub mod text;
+#[cfg(test)]
+mod tests;
 
 pub use axes::{finite_range, tick_label};
 pub use clip::clip_polyline;
