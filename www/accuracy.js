@@ -8,7 +8,7 @@
 // printable report. The check and the study run in the Web Worker (each
 // solves the model several times), with the progress bar and its cancel
 // button; the page stays usable meanwhile.
-import { stabilitySvg, version } from "./pkg/ratebook.js";
+import { stabilitySvg, version } from "./solver.js";
 import { el, fmt, svgUrl } from "./dom.js";
 import { printReport, saveReport } from "./report.js";
 import { inWorker } from "./runner.js";

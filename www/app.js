@@ -1,21 +1,20 @@
 // The workbench page: wires the editor, settings, views, results and keeping
 // of work around the solver.
-import { initSync, solve, compareMethods, checkAccuracy, convergenceStudy, methods, version } from "./pkg/ratebook.js";
 import { wasmBytes } from "./pkg/wasm_bytes.js";
+import { startSolver, methods, version } from "./solver.js";
+import { runJob } from "./jobs.js";
 import { $, el, notify, download, timed } from "./dom.js";
 import { EXAMPLES, exampleById } from "./examples.js";
 import { initEditor, setProblems, refreshEditor, readOnly } from "./editor.js";
-import { initRunner, setModule, setLocal, inWorker, hasWorker } from "./runner.js";
+import { initRunner, setModule, inWorker, hasWorker } from "./runner.js";
 import { initExports } from "./plotkit.js";
 import { initTimeView, showRun, drawTime } from "./timeview.js";
 import { initFieldView, showFieldRun, drawField, setFieldAxes } from "./fieldview.js";
 import { initCompareView, showComparison, clearComparison, setCompareQuantities } from "./compareview.js";
 import { showSummary, showTable, downloadCsv } from "./results.js";
 import { showParams } from "./params.js";
-import { sheetStart, grid } from "./runinfo.js";
-import { autosave, loadAutosave, keepPrevious, loadPrevious, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
+import { autosave, loadAutosave, keepPrevious, loadPrevious, watchOtherTabs, shareFragment, readFragment, fileText, readFileText, canAutosave, KeptModelError } from "./keep.js";
 import { renderAccuracy } from "./accuracy.js";
-import { initGuard, guarded } from "./guard.js";
 import { initGuide } from "./guide.js";
 
 // The page exactly as it arrived, for the single-file download (captured
@@ -23,31 +22,30 @@ import { initGuide } from "./guide.js";
 const PRISTINE_PAGE = "<!doctype html>\n" + document.documentElement.outerHTML;
 const SINGLE_FILE = ($("worker-src")?.textContent ?? "").trim().length > 0;
 
-let METHODS = [];
-const PLOT_POINTS = 600;
 const EDIT_DELAY_MS = 300;
+// A slider drag solves on the page's thread only for a model whose last
+// solve came back from the worker within QUICK_MS, and then under a step
+// cap of QUICK_STEPS times that solve's steps: a drag into a much harder
+// region hits the cap within a few milliseconds and goes to the worker.
+const QUICK_MS = 15;
+const QUICK_STEPS = 3;
 
 const solverModule = new WebAssembly.Module(await wasmBytes());
-initSync({ module: solverModule });
-initGuard(solverModule);
+startSolver(solverModule);
 setModule(solverModule);
-// A panic in the solver restarts it and comes back as an ordinary error.
-const solveHere = guarded(solve);
 // [id, label, "adaptive" | "fixed"], `auto` first, from the solver's registry.
-METHODS = methods().map((m) => [m.id, m.adaptive ? m.name : `${m.name}, fixed h`, m.adaptive ? "adaptive" : "fixed"]);
+const METHODS = methods().map((m) => [m.id, m.adaptive ? m.name : `${m.name}, fixed h`, m.adaptive ? "adaptive" : "fixed"]);
 METHODS.sort((a, b) => (b[0] === "auto") - (a[0] === "auto"));
-setLocal({
-  solve: (m) => solveHere(m.sheet, m.settings),
-  compare: guarded((m, onProgress) => compareMethods(m.sheet, m.settings, m.request, onProgress)),
-  accuracy: guarded((m, onProgress) => checkAccuracy(m.sheet, m.settings, onProgress)),
-  convergence: guarded((m, onProgress) => convergenceStudy(m.sheet, m.settings, onProgress)),
-});
 
 const app = {
-  good: null,          // { sheet, settings, plotRun, tableRun } of the last good solve
+  good: null,          // { sheet, settings, plotRun, tableRun, kept } of the last good solve
   seq: 0,              // solve requests issued
   shownSeq: 0,         // the request whose result is on screen
-  slowModel: false,    // this model's solves go to the worker
+  quickSteps: 0,       // > 0: this model solves quickly; a drag may solve here under this step cap
+  hadProblem: false,   // the sheet's problem list shows an error
+  autosave: "on",      // "on", "off" (no storage here) or "failed" (the last write did not go through)
+  otherTab: false,     // this copy of the page is open in another tab as well
+  previous: null,      // the kept model "Back to the previous sheet" brings back
   exampleId: "",
   embed: false,
 };
@@ -73,16 +71,19 @@ function keptSettings() {
   return { to: num("to"), method: $("method").value, tolerance, step: num("step"), spacing: num("spacing") };
 }
 
+/** Show settings `s`; returns the method id it asks for when this page has no such method (then `auto` is set). */
 function writeSettings(s) {
   const text = (v) => (v !== 0 && Math.abs(v) < 1e-3 ? v.toExponential().replace("e+", "e") : String(v));
   const put = (id, v) => { if (typeof v === "number") $(id).value = text(v); };
   put("to", s.to);
-  if (s.method && METHODS.some((m) => m[0] === s.method)) $("method").value = s.method;
+  const known = !s.method || METHODS.some((m) => m[0] === s.method);
+  $("method").value = known ? (s.method ?? METHODS[0][0]) : METHODS[0][0];
   put("tol-relative", s.tolerance?.relative);
   put("tol-absolute", s.tolerance?.absolute);
   put("step", s.step);
   $("spacing").value = typeof s.spacing === "number" ? text(s.spacing) : "";
   methodChanged();
+  return known ? null : s.method;
 }
 
 function methodChanged() {
@@ -99,19 +100,31 @@ function checkSettings(s) {
   return null;
 }
 
-/** Solver settings (without the page's own `spacing`), for the plotted run and for the table. */
-function runSettings(sheet, s) {
-  const { spacing, ...base } = s;
-  const t0 = sheetStart(sheet);
-  const plot = { ...base, at: grid(t0, s.to, Math.abs(s.to - t0) / PLOT_POINTS) };
-  const table = spacing === undefined ? base : { ...base, at: grid(t0, s.to, spacing) };
-  return { base, plot, table };
-}
-
 // ---- solving
 
-function hitStepCap(run) {
-  return (run.diagnostics ?? []).some((d) => /max.?steps|step.?cap|step.?limit/i.test(`${d.code} ${d.message}`));
+const hitStepCap = (run) => (run.diagnostics ?? []).some((d) => d.code === "max-steps");
+
+/**
+ * The `show` job (jobs.js) for `sheet` and settings `s`: its outline, the
+ * plotted run and, unless `live`, the table's run. Solves from typing,
+ * opening and settings run in the worker (a newer one supersedes it); a
+ * slider drag of a quick model runs here, under a step cap, and goes to the
+ * worker when it hits the cap.
+ */
+async function showJob(sheet, s, live) {
+  const msg = { kind: "show", sheet, settings: s, table: !live };
+  if (live && app.quickSteps > 0 && hasWorker()) {
+    const shown = timed("solve", () => runJob({ ...msg, settings: { ...s, stepLimit: app.quickSteps } }));
+    if (!hitStepCap(shown.plot)) return shown;
+    app.quickSteps = 0;
+  }
+  const start = performance.now();
+  const shown = await inWorker(msg, { supersede: true });
+  const end = performance.now();
+  performance.measure("rb:solve", { start, end });
+  const steps = shown.plot.stats?.steps ?? 0;
+  app.quickSteps = end - start < QUICK_MS && !hitStepCap(shown.plot) ? QUICK_STEPS * steps + 100 : 0;
+  return shown;
 }
 
 /**
@@ -122,35 +135,26 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   const sheet = $("sheet").value;
   const s = readSettings();
   const seq = ++app.seq;
+  document.body.dataset.settled = "0";
   const bad = checkSettings(s);
-  if (bad) { showProblem({ message: bad }); return; }
-  const { base, plot, table } = runSettings(sheet, s);
-  let plotRun, tableRun;
+  if (bad) { showProblem({ message: bad }); settle(seq); return; }
+  let shown;
   try {
-    if (!app.slowModel || !hasWorker()) {
-      const t = performance.now();
-      plotRun = timed("solve", () => solveHere(sheet, { ...plot, stepLimit: hasWorker() ? 50000 : undefined }));
-      if (performance.now() - t > 100 || (hasWorker() && hitStepCap(plotRun))) {
-        app.slowModel = true;
-        plotRun = null;
-      }
-    }
-    if (!plotRun) plotRun = await inWorker({ kind: "solve", sheet, settings: plot });
+    shown = await showJob(sheet, s, live);
     if (seq !== app.seq) return;
-    if (!live) {
-      tableRun = app.slowModel ? await inWorker({ kind: "solve", sheet, settings: table }) : solveHere(sheet, table);
-      if (seq !== app.seq) return;
-    }
   } catch (e) {
-    if (seq !== app.seq || e.cancelled) { if (e.cancelled) notify("Cancelled; the last result stays on screen."); return; }
-    showProblem(e);
+    if (seq !== app.seq) return;
+    if (e.cancelled) notify("Cancelled; the last result stays on screen.");
+    else showProblem(e);
+    settle(seq);
     return;
   }
+  const { outline, plot: plotRun, table: tableRun } = shown;
   app.good = { sheet, settings: s, plotRun, tableRun: tableRun ?? app.good?.tableRun, kept: keptSettings() };
   app.shownSeq = seq;
   if (!live || app.hadProblem) setProblems([]);
   app.hadProblem = false;
-  $("sheet-state").textContent = "";
+  showSheetState();
   timed("time-view", () => showRun(plotRun, { resetView, live }));
   timed("summary", () => showSummary(plotRun, { method: s.method }));
   $("summary").dataset.settings = JSON.stringify(s);
@@ -158,25 +162,43 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
+  const { spacing, ...base } = s; // the solver has no `spacing`
   showFieldRun(sheet, base, plotRun, { live });
   if (!live) {
-    showParams(sheet, paramMoved);
+    showParams(outline, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
     if (!$("accuracy-view").hidden) showAccuracy();
   }
+  settle(seq);
+}
+
+/** Test hook: `body[data-settled]` is "1" once the latest request's outcome is on screen. */
+function settle(seq) {
+  if (seq === app.seq) document.body.dataset.settled = "1";
 }
 
 function showProblem(e) {
   const p = { line: e.line, column: e.column, message: String(e.message ?? e) };
   app.hadProblem = true;
   setProblems([p]);
-  $("sheet-state").textContent = app.good ? "showing the last good result" : "";
+  showSheetState();
+}
+
+/** The line beside the sheet's title: a result kept from before, and whether the sheet is autosaved. */
+function showSheetState() {
+  const parts = [];
+  if (app.hadProblem && app.good) parts.push("showing the last good result");
+  if (app.autosave === "off") parts.push("autosave is off here (no storage in this frame)");
+  if (app.autosave === "failed") parts.push("not autosaved: storage full");
+  if (app.otherTab) parts.push("also open in another tab");
+  $("sheet-state").textContent = parts.join(" · ");
+  document.body.dataset.autosave = app.autosave;
 }
 
 let editTimer = 0;
 function edited() {
   clearTimeout(editTimer);
-  editTimer = setTimeout(() => { app.slowModel = false; solveAndShow(); save(); }, EDIT_DELAY_MS);
+  editTimer = setTimeout(() => { solveAndShow(); save(); }, EDIT_DELAY_MS);
 }
 
 // A slider drag: input events come faster than frames, so the sheet is
@@ -220,18 +242,36 @@ function kept() {
   return { sheet: $("sheet").value, settings: keptSettings() };
 }
 
+/**
+ * Autosave the sheet and settings (never in embed mode, which only shows a
+ * model). A write that fails says so beside the sheet, and once in a notice.
+ */
 function save() {
-  autosave(kept());
+  if (app.embed || app.autosave === "off") return;
+  const ok = autosave(kept());
+  if (!ok && app.autosave !== "failed") {
+    notify("Your latest edits could not be autosaved: this browser's storage for pages is full. Use Save to keep the sheet in a file.", { bad: true, sticky: true });
+  }
+  app.autosave = ok ? "on" : "failed";
+  showSheetState();
 }
 
 /**
  * Show a kept model (a file, a link, an example, the autosave). The sheet
- * it replaces is kept one click away ("Back to the previous sheet") and the
- * notice says so; `opened` names what was opened, for that notice.
+ * it replaces (`replacing`, the one shown by default) is kept one click
+ * away ("Back to the previous sheet") and the notice says so; `opened`
+ * names what was opened, for that notice. Opening never writes the
+ * autosave, which keeps the user's sheet until the opened one is edited;
+ * `save` is for bringing back one of the user's own.
  */
-function applyKept(k, { keepOld = true, opened = "", announce = false } = {}) {
-  const current = kept();
-  if (keepOld && current.sheet.trim() && current.sheet !== k.sheet) {
+function applyKept(k, { keepOld = true, opened = "", announce = false, replacing = kept(), save: saveIt = false } = {}) {
+  const current = replacing;
+  const unknown = writeSettings(k.settings);
+  if (unknown) {
+    // Said first: a notice about the sheet replaced below takes its place.
+    notify(`${opened ? `${opened[0].toUpperCase()}${opened.slice(1)}` : "The sheet"} asks for the method “${unknown}”, which this page does not have: it runs with “${METHODS[0][1]}” instead.`, { bad: true, sticky: true });
+  }
+  if (current && keepOld && current.sheet.trim() && current.sheet !== k.sheet) {
     keepPrevious(current);
     app.previous = current;
     $("restore-previous").hidden = false;
@@ -240,22 +280,21 @@ function applyKept(k, { keepOld = true, opened = "", announce = false } = {}) {
     const message = opened
       ? `${opened[0].toUpperCase()}${opened.slice(1)} replaced your sheet. The sheet you had is kept: “Back to the previous sheet” brings it back.`
       : "This is the previous sheet again. The one you just had is kept: “Back to the previous sheet” swaps them back.";
-    if (edited || announce) notify(message, { action: { label: "Back to the previous sheet", run: restorePrevious } });
-  } else if (announce) {
+    const also = unknown ? ` It asks for the method “${unknown}”, which this page does not have: it runs with “${METHODS[0][1]}” instead.` : "";
+    if (edited || announce) notify(message + also, { bad: !!unknown, action: { label: "Back to the previous sheet", run: restorePrevious } });
+  } else if (announce && !unknown) {
     notify(`Opened ${opened}.`);
   }
   $("sheet").value = k.sheet;
-  writeSettings(k.settings);
   refreshEditor();
-  app.slowModel = false;
   const done = solveAndShow({ resetView: true });
-  save();
+  if (saveIt) save();
   return done;
 }
 
 function restorePrevious() {
   const prev = app.previous ?? loadPrevious();
-  if (prev) { app.exampleId = ""; applyKept(prev); }
+  if (prev) { app.exampleId = ""; applyKept(prev, { save: true }); }
 }
 
 function loadExample(id, opts) {
@@ -274,12 +313,13 @@ function fileBase() {
   return app.exampleId || "ratebook-model";
 }
 
-async function openLink(hash) {
+/** Open the model in link fragment `hash` over `replacing` (by default the sheet shown). */
+async function openLink(hash, replacing = kept()) {
   try {
     const k = await readFragment(hash);
     if (!k) return false;
     app.exampleId = "";
-    await applyKept(k, { opened: "the link", announce: true });
+    await applyKept(k, { opened: "the link", announce: true, replacing });
     return true;
   } catch (e) {
     if (e instanceof KeptModelError) { notify(`This link cannot be opened: ${e.message}.`, { bad: true, sticky: true }); return false; }
@@ -356,7 +396,7 @@ function initPage() {
   initCompareView(runComparison);
   initExports(fileBase);
 
-  $("run").addEventListener("click", () => { app.slowModel = false; solveAndShow(); save(); });
+  $("run").addEventListener("click", () => { solveAndShow(); save(); });
   for (const id of ["to", "tol-relative", "tol-absolute", "step", "spacing"]) $(id).addEventListener("change", () => { solveAndShow(); save(); });
   $("method").addEventListener("change", () => { methodChanged(); solveAndShow(); save(); });
   $("examples").addEventListener("change", () => { const id = $("examples").value; $("examples").value = ""; loadExample(id); });
@@ -416,7 +456,19 @@ function initPage() {
   });
   window.addEventListener("hashchange", () => { openLink(location.hash); });
   window.addEventListener("beforeprint", () => { $("sheet-readonly").textContent = $("sheet").value; });
-  if (!canAutosave()) $("sheet-state").textContent = "autosave is off here (no storage in this frame)";
+  if (!canAutosave()) app.autosave = "off";
+  showSheetState();
+  // Two tabs on one copy share its autosave: say so beside the sheet, and in
+  // a notice unless one with something else to say is showing.
+  watchOtherTabs((what) => {
+    const first = !app.otherTab;
+    app.otherTab = true;
+    showSheetState();
+    if (!(first || what === "saved") || !$("notice").hidden) return;
+    notify(what === "saved"
+      ? "Another tab with this page has just autosaved its sheet over this one's. A reload brings back whichever tab was edited last: use Save to keep this sheet in a file."
+      : "This page is open in another tab too. Both autosave to the same place, so a reload brings back the one edited last: work in one tab, or use Save to keep a sheet in a file.", { bad: true, sticky: true });
+  });
 }
 
 async function startPage() {
@@ -425,11 +477,11 @@ async function startPage() {
   app.embed = /(^#|&)embed(&|$)/.test(hash);
   document.body.classList.toggle("embed", app.embed);
   let loaded = false;
-  if (/(^#|&)m=/.test(hash)) loaded = await openLink(hash);
-  if (!loaded && !app.embed) {
-    const k = loadAutosave();
-    if (k) { await applyKept(k, { keepOld: false }); loaded = true; }
-  }
+  // A link opened in a new tab replaces the autosaved sheet on screen only:
+  // that one stays kept, one click away.
+  const saved = app.embed ? null : loadAutosave();
+  if (/(^#|&)m=/.test(hash)) loaded = await openLink(hash, saved);
+  if (!loaded && saved) { await applyKept(saved, { keepOld: false }); loaded = true; }
   if (!loaded) await loadExample(EXAMPLES[0].id, { keepOld: false });
   if (app.embed) readOnly(true);
   document.body.dataset.readyAt = String(performance.now());

@@ -2,7 +2,7 @@
 // of two chosen states with direction arrows, nullclines and the solution
 // curve. A click starts a new curve through that point, integrated forward
 // and backward within the window.
-import { fieldView } from "./pkg/ratebook.js";
+import { fieldView } from "./solver.js";
 import { $, el, timed } from "./dom.js";
 import { Plot, registerPlot, drawPlot, canvasPoint, toData, insideFrame } from "./plotkit.js";
 

@@ -11,7 +11,7 @@
 // Adding a section is one entry in GUIDE_ENTRIES: { id, part, title, forms,
 // text, example, checks }. `text` is paragraphs; `code` is marked with
 // backticks; `{name}` is replaced by the solver's limit of that name.
-import { sheetLanguage } from "./pkg/ratebook.js";
+import { sheetLanguage } from "./solver.js";
 import { $, el } from "./dom.js";
 import { insertIntoSheet, setCompletions } from "./editor.js";
 

@@ -9,10 +9,6 @@ export const FILE_FORMAT = "ratebook-model";
 export const FILE_VERSION = 2;
 export const MAX_KEPT_BYTES = 1 << 20;
 
-const AUTOSAVE_KEY = "ratebook.autosave.v2";
-const PREVIOUS_KEY = "ratebook.previous.v2";
-/** The keys version 1 kept the same things under. */
-const V1_KEYS = { [AUTOSAVE_KEY]: "ratebook.autosave.v1", [PREVIOUS_KEY]: "ratebook.previous.v1" };
 
 /** A typed problem with a kept model (a file, a link, an autosave). */
 export class KeptModelError extends Error {}
@@ -71,6 +67,21 @@ export function checkKept(obj, version = FILE_VERSION) {
 }
 
 // ---- localStorage (absent or throwing in a sandboxed frame: then nothing is kept)
+//
+// Each copy of the page keeps its own: the keys hold the page's address
+// without its fragment, so a file on disk at two paths, or a served copy,
+// never share an autosave.
+
+/** This copy of the page: its address without query or fragment. */
+export const pageCopy = () => location.href.split(/[?#]/)[0];
+const autosaveKey = () => `ratebook.autosave.v2 ${pageCopy()}`;
+const previousKey = () => `ratebook.previous.v2 ${pageCopy()}`;
+// Before keys were per copy, every copy on an origin shared this one; the
+// first copy to start takes it over.
+const SHARED_AUTOSAVE_KEY = "ratebook.autosave.v1";
+
+/** This tab, in the autosave it writes (another tab's writes are told apart by it). */
+export const TAB = Math.random().toString(36).slice(2, 10);
 
 function storage() {
   try {
@@ -87,6 +98,7 @@ export function canAutosave() {
   return storage() !== null;
 }
 
+/** Store `value` as JSON; false when it could not be written (no storage, or storage full). */
 function putJson(key, value) {
   const s = storage();
   if (!s) return false;
@@ -98,23 +110,70 @@ function putJson(key, value) {
   }
 }
 
+/**
+ * The format of a kept model in localStorage, which holds no version: 1
+ * when its settings use a name or method id of version 1, else today's.
+ */
+function keptVersion(obj) {
+  const s = obj?.settings ?? {};
+  return "rtol" in s || "atol" in s || Object.hasOwn(V1_METHOD_IDS, s.method) ? 1 : FILE_VERSION;
+}
+
 function getJson(key) {
   const s = storage();
   if (!s) return null;
   try {
     const raw = s.getItem(key);
-    if (raw) return checkKept(JSON.parse(raw));
-    const old = s.getItem(V1_KEYS[key]);
-    return old ? checkKept(JSON.parse(old), 1) : null;
+    if (!raw) return null;
+    const obj = JSON.parse(raw);
+    return checkKept(obj, keptVersion(obj));
   } catch {
     return null;
   }
 }
 
-export const autosave = (kept) => putJson(AUTOSAVE_KEY, kept);
-export const loadAutosave = () => getJson(AUTOSAVE_KEY);
-export const keepPrevious = (kept) => putJson(PREVIOUS_KEY, kept);
-export const loadPrevious = () => getJson(PREVIOUS_KEY);
+/** Autosave `kept` for this copy; false when the write failed (storage full or absent). */
+export const autosave = (kept) => putJson(autosaveKey(), { ...kept, tab: TAB });
+
+/** This copy's autosave, or null. */
+export function loadAutosave() {
+  const own = getJson(autosaveKey());
+  if (own) return own;
+  const shared = getJson(SHARED_AUTOSAVE_KEY);
+  if (shared && putJson(autosaveKey(), shared)) storage()?.removeItem(SHARED_AUTOSAVE_KEY);
+  return shared;
+}
+
+export const keepPrevious = (kept) => putJson(previousKey(), kept);
+export const loadPrevious = () => getJson(previousKey());
+
+/**
+ * Call `onOther(what)` when another tab shows this copy of the page:
+ * `"open"` when one opens (or is found open), `"saved"` when one autosaves
+ * over this tab's sheet. Tabs find each other on a BroadcastChannel named
+ * after the copy, and by the storage events of the autosave key.
+ */
+export function watchOtherTabs(onOther) {
+  try {
+    const channel = new BroadcastChannel(`ratebook ${pageCopy()}`);
+    channel.onmessage = (e) => {
+      if (e.data?.tab === TAB) return;
+      if (e.data?.kind === "hello") channel.postMessage({ kind: "here", tab: TAB });
+      onOther("open");
+    };
+    channel.postMessage({ kind: "hello", tab: TAB });
+  } catch {
+    // No channel (an old browser, an opaque origin): the storage events below still tell.
+  }
+  window.addEventListener("storage", (e) => {
+    if (e.key !== autosaveKey() || !e.newValue) return;
+    try {
+      if (JSON.parse(e.newValue).tab !== TAB) onOther("saved");
+    } catch {
+      // not ours to read
+    }
+  });
+}
 
 // ---- share links: #m=<base64url(deflate-raw(JSON))>
 
@@ -137,6 +196,50 @@ async function pipe(bytes, stream) {
   return new Uint8Array(await out.arrayBuffer());
 }
 
+/**
+ * `bytes` inflated (deflate-raw), or null as soon as the output passes
+ * `limit` bytes. The input goes in by the kilobyte and each piece's output
+ * is counted before the next goes in (deflate inflates a kilobyte to at
+ * most about a megabyte), so a small link that would inflate to hundreds
+ * of megabytes costs about `limit`, not its full size.
+ */
+export async function inflateWithin(bytes, limit, piece = 1024) {
+  const stream = new DecompressionStream("deflate-raw");
+  const writer = stream.writable.getWriter();
+  const reader = stream.readable.getReader();
+  let stopped = false;
+  const feed = (async () => {
+    for (let i = 0; i < bytes.length && !stopped; i += piece) {
+      await writer.ready;
+      await writer.write(bytes.subarray(i, i + piece));
+    }
+    if (!stopped) await writer.close();
+  })();
+  feed.catch(() => {}); // a damaged stream also fails the reads below
+  const chunks = [];
+  let size = 0;
+  try {
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) break;
+      size += value.length;
+      if (size > limit) {
+        stopped = true;
+        reader.cancel().catch(() => {});
+        return null;
+      }
+      chunks.push(value);
+    }
+  } finally {
+    stopped = true;
+  }
+  await feed;
+  const out = new Uint8Array(size);
+  let at = 0;
+  for (const c of chunks) { out.set(c, at); at += c.length; }
+  return out;
+}
+
 /** The fragment (without '#') that holds `kept`. */
 export async function shareFragment(kept) {
   const json = new TextEncoder().encode(JSON.stringify({ v: FILE_VERSION, ...kept }));
@@ -151,8 +254,8 @@ export async function readFragment(hash) {
   if (m.length > MAX_KEPT_BYTES) throw new KeptModelError("the link is over 1 MB");
   let json;
   try {
-    const bytes = await pipe(fromBase64Url(m), new DecompressionStream("deflate-raw"));
-    if (bytes.length > MAX_KEPT_BYTES) throw new KeptModelError("the model in the link is over 1 MB");
+    const bytes = await inflateWithin(fromBase64Url(m), MAX_KEPT_BYTES);
+    if (!bytes) throw new KeptModelError("the model in the link is over 1 MB");
     json = JSON.parse(new TextDecoder("utf-8", { fatal: true }).decode(bytes));
   } catch (e) {
     if (e instanceof KeptModelError) throw e;

@@ -1,27 +1,42 @@
-// Parameters as sliders: every sheet line `name = number` gets a slider
-// around its value and an editable number. Moving either rewrites that line
-// of the sheet, so the sheet stays the whole model (autosave, links and files
-// need nothing more).
+// Parameters as sliders: every parameter whose definition is a plain number
+// (`k = 0.5`) gets a slider around its value and an editable number. Moving
+// either rewrites that number in the sheet, so the sheet stays the whole
+// model (autosave, links and files need nothing more). Which parameters
+// there are, and where their numbers stand, comes from the solver's own
+// reader (`readSheet`): the page never parses the sheet itself.
 import { $, el } from "./dom.js";
+import { readSheet } from "./solver.js";
 
-const PARAM_LINE = /^(\s*)([A-Za-z_][A-Za-z_0-9]*)(\s*=\s*)([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)(\s*(?:#.*)?)$/;
-
-/** The sheet's numeric parameters: [{ name, value, text, line }] (line 0-based). */
-export function findParams(sheet) {
-  const out = [];
-  sheet.split("\n").forEach((line, i) => {
-    const m = PARAM_LINE.exec(line);
-    if (m) out.push({ name: m[2], value: Number(m[4]), text: m[4], line: i });
-  });
-  return out;
+/**
+ * The sheet's slider parameters from its outline (readSheet):
+ * [{ name, value, text, line, index }], `line` 0-based, `index` where the
+ * number starts in that line.
+ */
+export function sliderParams(outline) {
+  return outline.params.filter((p) => p.literal)
+    .map((p) => ({ name: p.name, value: p.value, text: p.literal.text, line: p.line - 1, index: p.literal.index }));
 }
 
-/** `sheet` with parameter `name`'s number replaced by `text`. */
-export function setParam(sheet, name, text) {
-  return sheet.split("\n").map((line) => {
-    const m = PARAM_LINE.exec(line);
-    return m && m[2] === name ? m[1] + m[2] + m[3] + text + m[5] : line;
-  }).join("\n");
+/** Whether parameter `p`'s number stands where it says in `lines`. */
+const standsIn = (lines, p) => lines[p.line]?.startsWith(p.text, p.index) ?? false;
+
+/**
+ * `sheet` with parameter `p`'s number replaced by `text`, or null when the
+ * sheet no longer has that parameter as a plain number. When the sheet was
+ * edited since `p` was read, it is read again.
+ */
+export function setParam(sheet, p, text) {
+  let lines = sheet.split("\n");
+  if (!standsIn(lines, p)) {
+    let now;
+    try { now = sliderParams(readSheet(sheet)).find((q) => q.name === p.name); } catch { return null; }
+    if (!now) return null;
+    Object.assign(p, now);
+  }
+  const line = lines[p.line];
+  lines[p.line] = line.slice(0, p.index) + text + line.slice(p.index + p.text.length);
+  p.text = text;
+  return lines.join("\n");
 }
 
 /** A short text for a slider value: 4 significant digits, as a sheet number. */
@@ -31,32 +46,46 @@ export function sliderText(v) {
   return Math.abs(s) >= 1e5 || Math.abs(s) < 1e-3 ? s.toExponential().replace("e+", "e") : String(s);
 }
 
-function rangeFor(v) {
-  if (v === 0) return [-1, 1];
-  return v > 0 ? [0, 2 * v] : [2 * v, 0];
+/** A slider's range around `v`: [0, 2v] (or [2v, 0]), [-1, 1] around 0; always finite. */
+export function rangeFor(v) {
+  if (v === 0 || !Number.isFinite(v)) return [-1, 1];
+  const far = Math.min(2 * Math.abs(v), Number.MAX_VALUE);
+  return v > 0 ? [0, far] : [-far, 0];
+}
+
+/**
+ * Whether a slider over [lo, hi] no longer suits `v`: `v` lies outside, or
+ * the range is orders of magnitude wider than `v` (its steps would jump
+ * far past it: 2000 corrected to 0.002).
+ */
+export function staleRange(lo, hi, v) {
+  return !(v >= lo && v <= hi) || hi - lo > 100 * (v === 0 ? 1 : Math.abs(v));
 }
 
 let current = [];
 let onChange = () => {};
 
-/** Rebuild or refresh the sliders for `sheet`. `changed(sheet, live)` is called as they move. */
-export function showParams(sheet, changed) {
+/**
+ * Rebuild or refresh the sliders for the sheet with `outline` (readSheet).
+ * `changed(sheet, live)` is called as they move.
+ */
+export function showParams(outline, changed) {
   onChange = changed;
-  const params = findParams(sheet);
+  const params = sliderParams(outline);
   const same = params.length === current.length && params.every((p, i) => p.name === current[i].name);
   $("params-empty").hidden = params.length > 0;
   if (same) {
     // Refresh the numbers; a slider being dragged keeps its range.
     params.forEach((p, i) => {
+      Object.assign(current[i], p);
       const row = $("params").children[i];
       const [slider, box] = row.querySelectorAll("input");
       if (document.activeElement !== box) box.value = p.text;
       if (document.activeElement !== slider) {
-        if (p.value < Number(slider.min) || p.value > Number(slider.max)) setRange(slider, p.value);
+        if (staleRange(Number(slider.min), Number(slider.max), p.value)) setRange(slider, p.value);
         slider.value = String(p.value);
       }
     });
-    current = params;
     return;
   }
   current = params;
@@ -67,7 +96,7 @@ function setRange(slider, v) {
   const [lo, hi] = rangeFor(v);
   slider.min = String(lo);
   slider.max = String(hi);
-  slider.step = String((hi - lo) / 400);
+  slider.step = String((hi - lo) / 400 || "any");
 }
 
 function paramRow(p) {
@@ -79,9 +108,9 @@ function paramRow(p) {
   const apply = (text, live) => {
     const v = Number(text);
     if (text.trim() === "" || !Number.isFinite(v)) { box.classList.add("bad"); return; }
-    box.classList.remove("bad");
-    const sheet = setParam($("sheet").value, p.name, text.trim());
-    onChange(sheet, live);
+    const sheet = setParam($("sheet").value, p, text.trim());
+    box.classList.toggle("bad", sheet === null);
+    if (sheet !== null) onChange(sheet, live);
   };
   slider.addEventListener("input", () => {
     const text = sliderText(Number(slider.value));

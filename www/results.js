@@ -5,7 +5,9 @@ import { extremaOf, stopEvent } from "./runinfo.js";
 
 const TABLE_ROWS = 2000;
 
+/** A number cell; an absent number (a helper with no finite peak) shows as a dash. */
 function num(v, digits = 6) {
+  if (typeof v !== "number") return el("td", { class: "num", title: "no finite value" }, "—");
   return el("td", { class: "num", "data-v": String(v) }, fmt(v, digits));
 }
 

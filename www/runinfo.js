@@ -1,27 +1,19 @@
 // Reading a run report: peaks and troughs, events, the output grid.
 
-function fromEntry(name, e) {
-  const out = [];
-  const one = (kind, v, t) => { if (Number.isFinite(v) && Number.isFinite(t)) out.push({ name, kind, t, value: v }); };
-  if (e.kind || e.which) {
-    one(/max|peak/i.test(e.kind ?? e.which) ? "max" : "min", e.value, e.t);
-  } else {
-    if (e.max && typeof e.max === "object") one("max", e.max.value, e.max.t); else one("max", e.max, e.tMax ?? e.maxT);
-    if (e.min && typeof e.min === "object") one("min", e.min.value, e.min.t); else one("min", e.min, e.tMin ?? e.minT);
-  }
-  return out;
-}
-
 /**
  * Every quantity's maximum and minimum with its time: [{ name, kind, t, value,
- * located }]. From the solver's located extrema when the run has them, else
- * read off the output points (located: false).
+ * located }]. From the solver's located extrema (`{ name, max, tMax, min,
+ * tMin }`) when the run has them, else read off the output points (located:
+ * false). A value or time that is not a finite number (a helper that
+ * overflowed) is left out.
  */
 export function extremaOf(run) {
-  const x = run.extrema;
-  if (Array.isArray(x) && x.length) return x.flatMap((e) => fromEntry(e.name, e)).map((e) => ({ ...e, located: true }));
-  if (x && typeof x === "object" && !Array.isArray(x) && Object.keys(x).length) {
-    return Object.entries(x).flatMap(([name, e]) => fromEntry(name, e)).map((e) => ({ ...e, located: true }));
+  const finite = (e) => Number.isFinite(e.value) && Number.isFinite(e.t);
+  if (run.extrema?.length) {
+    return run.extrema.flatMap((e) => [
+      { name: e.name, kind: "max", t: e.tMax, value: e.max, located: true },
+      { name: e.name, kind: "min", t: e.tMin, value: e.min, located: true },
+    ]).filter(finite);
   }
   const out = [];
   for (const name of [...run.states, ...run.helpers]) {
@@ -32,14 +24,7 @@ export function extremaOf(run) {
     out.push({ name, kind: "max", t: run.t[hi], value: v[hi], located: false });
     out.push({ name, kind: "min", t: run.t[lo], value: v[lo], located: false });
   }
-  return out;
-}
-
-/** The start time given in the sheet's initial values, or 0. */
-export function sheetStart(sheet) {
-  const m = /^\s*[A-Za-z_][A-Za-z_0-9]*'*\s*\(\s*([^)]*)\)\s*=/m.exec(sheet.replace(/#.*$/gm, ""));
-  const v = m ? Number(m[1]) : 0;
-  return Number.isFinite(v) ? v : 0;
+  return out.filter(finite);
 }
 
 /**

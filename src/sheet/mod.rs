@@ -48,6 +48,7 @@ mod error;
 pub mod ir;
 pub mod lower;
 mod model;
+pub mod outline;
 pub mod scan;
 
 pub use error::{ModelError, ModelErrorKind};

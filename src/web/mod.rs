@@ -282,4 +282,5 @@ impl draw::Strokes for CanvasStrokes {
     }
 }
 
+mod sheet;
 mod study;

@@ -11,7 +11,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { deflateRawSync } from "node:zlib";
 import { SINGLE_FILE_URL, serveWww, launch, openPage } from "./harness.mjs";
-import { dialogText } from "./pagekit.mjs";
+import { dialogText, pasteSheet } from "./pagekit.mjs";
 
 let server, context;
 before(async () => { server = await serveWww(); context = await launch(); });
@@ -24,7 +24,7 @@ async function ready(page) {
 }
 
 async function typeSheet(page, text) {
-  await page.fill("#sheet", text);
+  await pasteSheet(page, text);
   await page.waitForTimeout(450);
 }
 
@@ -100,7 +100,7 @@ test("a panic in the solver leaves a working page, reports the message and keeps
   assert.equal(await page.inputValue("#sheet"), sheet + "# edited\n", "the sheet is kept");
   assert.ok(errors.some((e) => /deliberate test panic/.test(e)), "the hook reported the message on the console");
   // The autosave holds the edit made just before the panic.
-  assert.equal(await page.evaluate(() => JSON.parse(localStorage.getItem("ratebook.autosave.v2")).sheet), sheet + "# edited\n");
+  assert.equal(await page.evaluate(() => JSON.parse(localStorage.getItem(`ratebook.autosave.v2 ${location.href.split(/[?#]/)[0]}`)).sheet), sheet + "# edited\n");
   // The restarted solver works: the next edit solves and draws.
   await typeSheet(page, sheet.replace("0.7", "0.9"));
   await page.waitForSelector("#problem", { state: "hidden" });
@@ -202,7 +202,7 @@ test("version-1 links, files and autosaves open with their old names mapped to t
   assert.equal(await fresh.inputValue("#sheet"), COOLING + "# autosaved\n");
   assert.deepEqual(await shown(fresh), want, "autosave");
   await typeSheet(fresh, COOLING + "# autosaved again\n");
-  const saved = await fresh.evaluate(() => JSON.parse(localStorage.getItem("ratebook.autosave.v2")));
+  const saved = await fresh.evaluate(() => JSON.parse(localStorage.getItem(`ratebook.autosave.v2 ${location.href.split(/[?#]/)[0]}`)));
   assert.deepEqual(saved.settings.tolerance, { relative: 2e-7, absolute: 3e-11 });
   assert.equal(saved.settings.method, "radau-iia-5");
   await fresh.close();

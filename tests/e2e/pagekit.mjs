@@ -1,7 +1,7 @@
 // Helpers for tests of the workbench page (additive to harness.mjs).
 import { readFileSync } from "node:fs";
-import { initSync, solve } from "../../www/pkg/ratebook.js";
-import { grid, sheetStart } from "../../www/runinfo.js";
+import { initSync, solve, readSheet } from "../../www/pkg/ratebook.js";
+import { grid } from "../../www/runinfo.js";
 
 initSync({ module: readFileSync(new URL("../../www/pkg/ratebook_bg.wasm", import.meta.url)) });
 
@@ -10,10 +10,29 @@ export async function ready(page) {
   await page.waitForFunction(() => document.body.dataset.ready === "1", null, { timeout: 15000 });
 }
 
-/** Replace the sheet text as a user would, and wait for the page to take it up. */
+/** Wait until the outcome of the page's latest solve request is on screen (solves run in a worker). */
+export async function settled(page) {
+  await page.waitForFunction(() => document.body.dataset.settled === "1", null, { timeout: 30000 });
+}
+
+/**
+ * Replace the sheet as a paste does: the new text, then one input event.
+ * (Playwright's fill types a textarea line by line, an input event a line.)
+ */
+export function pasteSheet(page, text) {
+  return page.evaluate((t) => {
+    const s = document.getElementById("sheet");
+    s.focus();
+    s.value = t;
+    s.dispatchEvent(new InputEvent("input", { inputType: "insertFromPaste" }));
+  }, text);
+}
+
+/** Replace the sheet text as a user would, and wait for the page to take it up and show its result. */
 export async function setSheet(page, text) {
   await page.fill("#sheet", text);
-  await page.waitForTimeout(450);
+  await page.waitForTimeout(400);
+  await settled(page);
 }
 
 /** The summary's final values, full precision, by name. */
@@ -24,7 +43,7 @@ export async function summaryValues(frame) {
 
 /** The Node API's run for the page's plotted run (same sheet, settings and output grid). */
 export function nodeRun(sheet, settings, points = 600) {
-  const t0 = sheetStart(sheet);
+  const t0 = readSheet(sheet).start;
   return solve(sheet, { ...settings, at: grid(t0, settings.to, Math.abs(settings.to - t0) / points) });
 }
 

@@ -5,7 +5,7 @@ import assert from "node:assert/strict";
 import { mkdirSync } from "node:fs";
 import { join } from "node:path";
 import { ROOT, serveWww, launch, openPage, inkedPixels } from "./harness.mjs";
-import { ready, summaryValues, nodeRun, shownSettings, finalValues, download } from "./pagekit.mjs";
+import { ready, settled, summaryValues, nodeRun, shownSettings, finalValues, download } from "./pagekit.mjs";
 import { EXAMPLES } from "../../www/examples.js";
 
 const SHOTS = join(ROOT, "target", "screenshots");
@@ -106,7 +106,7 @@ test("a parameter slider rewrites its sheet line and re-solves while dragging", 
   const slider = page.locator("#param-R");
   await slider.focus();
   for (let i = 0; i < 20; i++) await page.keyboard.press("ArrowRight");
-  await page.waitForTimeout(100);
+  await settled(page);
   const sheet = await page.inputValue("#sheet");
   const r = Number(/^R\s*=\s*(\S+)/m.exec(sheet)[1]);
   assert.ok(r > 4700, `R moved up: ${r}`);
@@ -117,6 +117,7 @@ test("a parameter slider rewrites its sheet line and re-solves while dragging", 
   await page.fill(".param-value[aria-label='C value']", "1e-4");
   await page.press(".param-value[aria-label='C value']", "Enter");
   await page.waitForFunction(() => /^C\s*=\s*1e-4/m.test(document.getElementById("sheet").value));
+  await settled(page);
   const { spacing, ...s } = await shownSettings(page);
   assert.deepEqual(await summaryValues(page), finalValues(nodeRun(await page.inputValue("#sheet"), s)));
   assert.deepEqual(errors, []);
