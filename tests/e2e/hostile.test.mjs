@@ -202,7 +202,7 @@ test("version-1 links, files and autosaves open with their old names mapped to t
   assert.equal(await fresh.inputValue("#sheet"), COOLING + "# autosaved\n");
   assert.deepEqual(await shown(fresh), want, "autosave");
   await typeSheet(fresh, COOLING + "# autosaved again\n");
-  const saved = await fresh.evaluate(() => JSON.parse(localStorage.getItem("ratebook.autosave.v2")));
+  const saved = await fresh.evaluate(() => JSON.parse(localStorage.getItem(`ratebook.autosave.v2 ${location.href.split(/[?#]/)[0]}`)));
   assert.deepEqual(saved.settings.tolerance, { relative: 2e-7, absolute: 3e-11 });
   assert.equal(saved.settings.method, "radau-iia-5");
   await fresh.close();
