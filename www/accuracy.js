@@ -142,10 +142,10 @@ let checks = 0;
 // on the main screen share it, so one run is checked once.
 let lastCheck = null;
 
-function checkFor(sheet, settings) {
+function checkFor(sheet, settings, { quiet = false } = {}) {
   const key = JSON.stringify([sheet, settings]);
   if (lastCheck?.key === key) return lastCheck.promise;
-  const promise = inWorker({ kind: "accuracy", sheet, settings: { ...solverSettings(settings), shownDigits: SHOWN_DIGITS } }, { label: "Checking the accuracy…" });
+  const promise = inWorker({ kind: "accuracy", sheet, settings: { ...solverSettings(settings), shownDigits: SHOWN_DIGITS } }, { label: "Checking the accuracy…", quiet });
   const mine = { key, promise };
   lastCheck = mine;
   // A failed or cancelled check is tried afresh next time.
@@ -197,7 +197,7 @@ export function showAccuracyLine(sheet, settings, run, { live = false } = {}) {
   setLine("checking", "checking…");
   lineTimer = setTimeout(async () => {
     try {
-      const rep = await checkFor(sheet, settings);
+      const rep = await checkFor(sheet, settings, { quiet: true });
       if (seq === lineSeq) setLine("done", plainName(rep.verdict), rep.alarm);
     } catch (e) {
       if (seq !== lineSeq) return;

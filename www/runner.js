@@ -177,7 +177,7 @@ function post(job) {
  * than a quick solve) and then stopped the same way, by restarting the
  * worker, so that a long solve never holds up the next one.
  */
-export function inWorker(msg, { label = "Solving…", onProgress, supersede = false } = {}) {
+export function inWorker(msg, { label = "Solving…", onProgress, supersede = false, quiet = false } = {}) {
   return new Promise((resolve, reject) => {
     const job = { msg: { ...msg, id: nextId++ }, resolve, reject, label, supersede, posted: 0, progress: null, onProgress: (d, n) => {
       job.progress = [d, n];
@@ -186,7 +186,8 @@ export function inWorker(msg, { label = "Solving…", onProgress, supersede = fa
     } };
     // Test hook: a deliberate panic armed on the page goes with the next job.
     if (globalThis.ratebookArmTestPanic === true) { globalThis.ratebookArmTestPanic = false; job.msg.armTestPanic = true; }
-    showBusy(job);
+    // A background job (`quiet`) shows no busy bar.
+    if (!quiet) showBusy(job);
     if (supersede) supersedeWith(job); else post(job);
   });
 }

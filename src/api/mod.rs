@@ -690,7 +690,7 @@ mod tests {
         let unknown = RunRequest { params: Some([("c".to_string(), 1.0)].into()), ..req.clone() };
         assert!(matches!(solve(sheet, &unknown), Err(ApiError::Settings(SolveError::InvalidSettings { field: "params", .. }))));
         let bad = RunRequest { step_limit: Some(-1.0), ..req.clone() };
-        assert!(matches!(solve(sheet, &bad), Err(ApiError::Settings(SolveError::InvalidSettings { field: "max_steps", .. }))));
+        assert!(matches!(solve(sheet, &bad), Err(ApiError::Settings(SolveError::InvalidSettings { field: "stepLimit", .. }))));
         assert!(matches!(solve("y' = \n", &req), Err(ApiError::Sheet(_))));
         assert_eq!(exact(&solve(sheet, &req).unwrap()), exact(&run_model(&mut model(sheet, &req).unwrap(), &req).unwrap()));
     }
