@@ -40,7 +40,7 @@ fn an_atol_typed_1e9_is_named_and_the_check_runs_at_sane_tolerances() {
     assert!(has(&r, "tolerance-dwarfs-values"), "{:?}", rep.pitfalls);
     let p = rep.pitfalls.iter().find(|p| p.code == "tolerance-dwarfs-values").unwrap();
     assert_eq!(rep.pitfalls[0].code, "tolerance-dwarfs-values");
-    assert!(p.message.contains("atol 1e9"), "{}", p.message);
+    assert!(p.message.contains("absolute tolerance 1e9"), "{}", p.message);
     assert!(p.message.contains("1e9 looks like 1e-9"), "{}", p.message);
     assert!(p.message.contains("no correct digit"), "{}", p.message);
     // The verdict says so, and no quantity claims a digit.

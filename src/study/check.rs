@@ -157,10 +157,10 @@ pub fn check(
         let tight = |f: f64| solve::Tolerance { relative: (start.relative / f).max(RTOL_FLOOR), absolute: start.absolute / f };
         let tol = tight(100.0);
         let mut text = if start == settings.tol {
-            format!("re-solved with the tolerances 100 times tighter (rtol {}, atol {})", plain(tol.relative), plain(tol.absolute))
+            format!("re-solved with the tolerances 100 times tighter (relative tolerance {}, absolute tolerance {})", plain(tol.relative), plain(tol.absolute))
         } else {
             format!(
-                "re-solved at rtol {}, atol {}: 100 times tighter than rtol {}, atol {}, which ask for digits where the run's (rtol {}, atol {}) do not",
+                "re-solved at relative tolerance {}, absolute tolerance {}: 100 times tighter than relative tolerance {}, absolute tolerance {}, which ask for digits where the run's (relative tolerance {}, absolute tolerance {}) do not",
                 plain(tol.relative),
                 plain(tol.absolute),
                 plain(start.relative),

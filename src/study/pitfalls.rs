@@ -172,9 +172,9 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
     }
     let (r, a) = (held.relative != tol.relative, held.absolute != tol.absolute);
     let what = match (r, a) {
-        (true, true) => format!("rtol {} and atol {} allow", typed(tol.relative), typed(tol.absolute)),
-        (true, false) => format!("rtol {} allows", typed(tol.relative)),
-        _ => format!("atol {} allows", typed(tol.absolute)),
+        (true, true) => format!("relative tolerance {} and absolute tolerance {} allow", typed(tol.relative), typed(tol.absolute)),
+        (true, false) => format!("relative tolerance {} allows", typed(tol.relative)),
+        _ => format!("absolute tolerance {} allows", typed(tol.absolute)),
     };
     let allowed = tol.relative * scale + tol.absolute;
     // The least trusted final value, to show what the settings did.
@@ -193,15 +193,15 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
         });
     let mut fix = Vec::new();
     if r {
-        fix.push(format!("rtol to {} (the default) or tighter", typed(held.relative)));
+        fix.push(format!("relative tolerance to {} (the default) or tighter", typed(held.relative)));
     }
     if a {
         // A power of ten above 1 is most likely a lost minus sign.
         let e = tol.absolute.log10();
         fix.push(if e >= 1.0 && e.fract() == 0.0 {
-            format!("atol to {}: {} looks like {} with its minus sign lost", typed(1.0 / tol.absolute), typed(tol.absolute), typed(1.0 / tol.absolute))
+            format!("absolute tolerance to {}: {} looks like {} with its minus sign lost", typed(1.0 / tol.absolute), typed(tol.absolute), typed(1.0 / tol.absolute))
         } else {
-            format!("atol well below the smallest value that matters (the default is {})", typed(held.absolute))
+            format!("absolute tolerance well below the smallest value that matters (the default is {})", typed(held.absolute))
         });
     }
     Some(pit(
@@ -209,7 +209,7 @@ pub fn tolerance_dwarfs_values(cx: &mut Context) -> Option<Pitfall> {
         Severity::Alarm,
         "The tolerances dwarf the solution's values",
         format!(
-            "The run's {what} an error of {} in each step, while its values stay within {}: the settings ask for no correct digit, so the solver takes the largest steps it may and its results can be anything{example}. Set {}. The check below started from the default tolerances in their place (rtol {}, atol {}), whatever the run's.",
+            "The run's {what} an error of {} in each step, while its values stay within {}: the settings ask for no correct digit, so the solver takes the largest steps it may and its results can be anything{example}. Set {}. The check below started from the default tolerances in their place (relative tolerance {}, absolute tolerance {}), whatever the run's.",
             with_digits(allowed, 2),
             with_digits(scale, 3),
             fix.join(", and "),
@@ -543,7 +543,7 @@ pub fn loose_tolerance(cx: &mut Context) -> Option<Pitfall> {
         format!("Shrink the step to about h = {} (from {}), or read only {} digits.", with_digits(hn, 2), plain(h), w.digits)
     } else {
         format!(
-            "Tighten rtol to {} (it is {}), or read only {} digits.",
+            "Tighten the relative tolerance to {} (it is {}), or read only {} digits.",
             with_digits(10f64.powi(-(opts.shown_digits as i32 + 2)), 1),
             plain(settings.tol.relative),
             w.digits
