@@ -95,6 +95,13 @@ fn request<T: serde::de::DeserializeOwned + Default>(v: JsValue, what: &str) -> 
         return Err(error_with(&msg, &[]));
     }
     serde_wasm_bindgen::from_value(v.clone()).map_err(|e| {
+        // The request's own readers (an unknown or renamed setting, too many
+        // output times) say in words what is wrong; serde's type complaints
+        // ("invalid type: …, expected …") are put in words below.
+        let whole = e.to_string();
+        if !whole.contains("expected ") {
+            return error_with(&format!("{what}: {whole}"), &[]);
+        }
         // Find the setting at fault: the first that does not read on its own.
         let keys = js_sys::Object::keys(v.unchecked_ref::<js_sys::Object>());
         for key in keys.iter() {
@@ -141,7 +148,7 @@ fn plain(serde_message: &str, value: &JsValue) -> String {
     let expected = serde_message.rsplit("expected ").next().unwrap_or("");
     let wanted = if ["f64", "f32", "u64", "u32", "usize", "i64", "i32"].iter().any(|t| expected.starts_with(t)) {
         "a number"
-    } else if expected.contains("sequence") || expected.contains("tuple") {
+    } else if expected.contains("sequence") || expected.contains("tuple") || expected.contains("list") {
         "an array"
     } else if expected.contains("string") {
         "a string"
@@ -151,6 +158,9 @@ fn plain(serde_message: &str, value: &JsValue) -> String {
         "an object"
     } else if expected.contains("variant") {
         "one of the names listed in the documentation"
+    } else if !expected.is_empty() {
+        // What the request's own reader expects, in its words.
+        expected.trim_end()
     } else {
         "a value of another kind"
     };

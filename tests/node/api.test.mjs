@@ -38,7 +38,7 @@ test("a report's columns are plain arrays, and a sheet solved again gives the sa
     assert.equal(col.length, a.t.length);
   }
   assert.deepEqual(Object.keys(a), ["independent", "method", "states", "helpers", "t", "values", "events", "extrema",
-    "diagnostics", "status", "error", "stats"]);
+    "diagnostics", "status", "reached", "error", "stats"]);
   assert.deepEqual(Object.keys(a.values), ["h", "q"]);
   // The second call reuses the compiled sheet; a third with a new value of k
   // recompiles; both agree with the first exactly (JSON keeps every digit).
