@@ -14,6 +14,7 @@
 // result settles, and shared with the Accuracy tab.
 import { stabilitySvg, version } from "./solver.js";
 import { el, fmt, svgUrl } from "./dom.js";
+import { solverSettings } from "./runinfo.js";
 import { printReport, saveReport } from "./report.js";
 import { inWorker, hasWorker } from "./runner.js";
 
@@ -23,11 +24,6 @@ export const SHOWN_DIGITS = 6;
 const plainName = (s) => s.replace(/`/g, "");
 
 let state = null; // { sheet, settings, report, stability, convergence }
-
-function solverSettings(settings) {
-  const { spacing, ...rest } = settings ?? {};
-  return rest;
-}
 
 function quantityTable(rep) {
   const head = el("tr", {}, ...["result", "value", "error", "trusted digits", "check value"].map((h) => el("th", {}, h)));

@@ -4,6 +4,7 @@ import { wasmBytes } from "./pkg/wasm_bytes.js";
 import { startSolver, methods, version } from "./solver.js";
 import { runJob } from "./jobs.js";
 import { $, el, notify, download, timed } from "./dom.js";
+import { solverSettings } from "./runinfo.js";
 import { EXAMPLES, exampleById } from "./examples.js";
 import { initEditor, setProblems, refreshEditor, readOnly } from "./editor.js";
 import { initRunner, setModule, inWorker, hasWorker } from "./runner.js";
@@ -163,8 +164,7 @@ async function solveAndShow({ live = false, resetView = false } = {}) {
   if (tableRun) showTable(tableRun);
   const names = [...plotRun.states, ...plotRun.helpers];
   setCompareQuantities(names);
-  const { spacing: _spacing, ...base } = s;
-  showFieldRun(sheet, base, plotRun, { live });
+  showFieldRun(sheet, solverSettings(s), plotRun, { live });
   if (!live) {
     showParams(outline, paramMoved);
     clearComparison("The model or settings changed: run the comparison again.");
@@ -373,9 +373,8 @@ async function runComparison() {
   const { sheet, settings } = app.good;
   const h = Number($("compare-h").value);
   const request = { quantity: $("compare-state").value || undefined, step: h > 0 ? h : undefined };
-  const { spacing, ...base } = settings;
   try {
-    const rep = await inWorker({ kind: "compare", sheet, settings: base, request }, { label: "Comparing methods…" });
+    const rep = await inWorker({ kind: "compare", sheet, settings: solverSettings(settings), request }, { label: "Comparing methods…" });
     showComparison(rep);
   } catch (e) {
     if (!e.cancelled) clearComparison(`The comparison failed: ${e.message}`);

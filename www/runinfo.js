@@ -1,5 +1,11 @@
 // Reading a run report: peaks and troughs, events, the output grid.
 
+/** The page's run settings as the solver takes them: without the page's own output `spacing`. */
+export function solverSettings(settings) {
+  const { spacing, ...rest } = settings ?? {};
+  return rest;
+}
+
 /**
  * Every quantity's maximum and minimum with its time: [{ name, kind, t, value,
  * located }]. From the solver's located extrema (`{ name, max, tMax, min,
